@@ -1,0 +1,41 @@
+import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
+import { ensureDb } from '$lib/server/db/index';
+import { lucia } from '$lib/server/auth/lucia';
+import { startRuntime } from '$lib/server/runtime';
+
+export const init: ServerInit = async () => {
+	await ensureDb();
+	await startRuntime();
+};
+
+export const handle: Handle = async ({ event, resolve }) => {
+	await ensureDb();
+	const sessionId = event.cookies.get(lucia.sessionCookieName);
+	event.locals.user = null;
+	event.locals.session = null;
+	if (sessionId) {
+		const { session, user } = await lucia.validateSession(sessionId);
+		if (session && session.fresh) {
+			const cookie = lucia.createSessionCookie(session.id);
+			event.cookies.set(cookie.name, cookie.value, { path: '.', ...cookie.attributes });
+		}
+		if (!session) {
+			const blank = lucia.createBlankSessionCookie();
+			event.cookies.set(blank.name, blank.value, { path: '.', ...blank.attributes });
+		}
+		event.locals.user = user;
+		event.locals.session = session;
+	}
+	const response = await resolve(event);
+	response.headers.set('X-Frame-Options', 'DENY');
+	response.headers.set('X-Content-Type-Options', 'nosniff');
+	response.headers.set('Referrer-Policy', 'same-origin');
+	response.headers.set('Permissions-Policy', 'camera=(), microphone=(), geolocation=()');
+	return response;
+};
+
+export const handleError: HandleServerError = ({ error, status }) => {
+	// Unexpected errors are logged server-side; the browser gets no internals.
+	if (status >= 500) console.error('[paretherm] unexpected error', error);
+	return { message: status >= 500 ? 'Something went wrong on the server; the error was logged.' : String((error as Error)?.message ?? error) };
+};

@@ -1,0 +1,46 @@
+/**
+ * One Sequelize instance over one SQLite file.
+ *
+ * The file lives in the data folder (`PARETHERM_DATA_DIR`, default `./data`). WAL lets readers work
+ * while the single writer (the web process) stores sweep results; the busy timeout makes a second
+ * writer (the seed or backup command) wait instead of failing.
+ */
+import { Sequelize } from 'sequelize';
+import sqlite3 from 'sqlite3';
+import fs from 'node:fs';
+import path from 'node:path';
+import { runMigrations } from './migrate';
+
+export function dataDir(): string {
+	return path.resolve(process.env.PARETHERM_DATA_DIR ?? './data');
+}
+
+export function databaseFile(): string {
+	return path.join(dataDir(), 'paretherm.sqlite');
+}
+
+fs.mkdirSync(dataDir(), { recursive: true });
+
+export const sequelize = new Sequelize({
+	dialect: 'sqlite',
+	dialectModule: sqlite3,
+	storage: databaseFile(),
+	logging: false,
+	// SQLite has one writer; a single pooled connection keeps transactions serialised.
+	pool: { max: 1, min: 0, idle: 10_000 },
+	retry: { max: 5, match: [/SQLITE_BUSY/] }
+});
+
+let ready: Promise<void> | null = null;
+
+/** Connects, sets the pragmas and applies pending migrations. Safe to call many times. */
+export function ensureDb(): Promise<void> {
+	ready ??= (async () => {
+		await sequelize.query('PRAGMA journal_mode = WAL;');
+		await sequelize.query('PRAGMA busy_timeout = 5000;');
+		await sequelize.query('PRAGMA foreign_keys = ON;');
+		await sequelize.query('PRAGMA synchronous = NORMAL;');
+		await runMigrations(sequelize);
+	})();
+	return ready;
+}

@@ -1,0 +1,5 @@
+import type { Migration } from './types';
+import m001 from './001-foundation';
+
+/** Applied in this order; append new migrations, never edit or remove a released one. */
+export const migrations: Migration[] = [m001];

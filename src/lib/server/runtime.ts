@@ -1,0 +1,14 @@
+/**
+ * Background services the web process owns: the sweep runtime (Redis, queue, in-process worker,
+ * result persistence) and the mail outbox. Started once from `hooks.server.ts` `init`.
+ * Set PARETHERM_NO_RUNTIME=1 to serve pages without them (used by some tests).
+ */
+let started: Promise<void> | null = null;
+
+export function startRuntime(): Promise<void> {
+	if (process.env.PARETHERM_NO_RUNTIME === '1') return Promise.resolve();
+	started ??= (async () => {
+		// Filled in as the sweep runtime and the outbox land.
+	})();
+	return started;
+}

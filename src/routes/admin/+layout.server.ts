@@ -1,0 +1,7 @@
+import type { LayoutServerLoad } from './$types';
+import { requireAdmin } from '$lib/server/auth/guard';
+
+export const load: LayoutServerLoad = async ({ locals }) => {
+	requireAdmin(locals);
+	return {};
+};

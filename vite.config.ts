@@ -1,0 +1,11 @@
+import { sveltekit } from '@sveltejs/kit/vite';
+import tailwindcss from '@tailwindcss/vite';
+import { defineConfig } from 'vite';
+
+export default defineConfig({
+	plugins: [tailwindcss(), sveltekit()],
+	ssr: {
+		// Native and CommonJS-heavy server packages stay external to the server bundle.
+		external: ['sqlite3', 'sequelize', 'bullmq', 'ioredis', '@node-rs/bcrypt', 'nodemailer', 'smtp-server']
+	}
+});

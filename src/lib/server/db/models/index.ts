@@ -4,3 +4,8 @@ export { Program } from './program';
 export { Membership } from './membership';
 export { Invitation } from './invitation';
 export { ParameterSet, type ParameterKind } from './parameter-set';
+export { Sweep, ACTIVE_SWEEP_STATUSES, type SweepStatus } from './sweep';
+export { SweepChunk } from './sweep-chunk';
+export { SweepPoint } from './sweep-point';
+export { SweepScenario } from './sweep-scenario';
+export { SweepSeries } from './sweep-series';

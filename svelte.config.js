@@ -15,7 +15,7 @@ const config = {
 				// ECharts and Svelte transitions set inline styles.
 				'style-src': ['self', 'unsafe-inline'],
 				'img-src': ['self', 'data:', 'blob:'],
-				'font-src': ['self'],
+				'font-src': ['self', 'data:'],
 				'connect-src': ['self'],
 				'frame-ancestors': ['none'],
 				'form-action': ['self'],

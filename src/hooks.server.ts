@@ -1,4 +1,4 @@
-import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
+import { redirect, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { ensureDb } from '$lib/server/db/index';
 import { lucia } from '$lib/server/auth/lucia';
 import { startRuntime } from '$lib/server/runtime';
@@ -26,6 +26,10 @@ export const handle: Handle = async ({ event, resolve }) => {
 		event.locals.user = user;
 		event.locals.session = session;
 	}
+	if (!event.locals.user && event.request.method === 'GET' && needsSignIn(event.url.pathname)) {
+		const next = event.url.pathname + event.url.search;
+		redirect(303, `/login?next=${encodeURIComponent(next)}`);
+	}
 	const response = await resolve(event);
 	response.headers.set('X-Frame-Options', 'DENY');
 	response.headers.set('X-Content-Type-Options', 'nosniff');
@@ -39,3 +43,8 @@ export const handleError: HandleServerError = ({ error, status }) => {
 	if (status >= 500) console.error('[paretherm] unexpected error', error);
 	return { message: status >= 500 ? 'Something went wrong on the server; the error was logged.' : String((error as Error)?.message ?? error) };
 };
+
+/** Pages (not JSON routes, which answer 401 themselves) send anonymous visitors to sign in. */
+function needsSignIn(pathname: string): boolean {
+	return pathname.startsWith('/programs') || pathname.startsWith('/admin');
+}

@@ -59,6 +59,6 @@ export const actions: Actions = {
 		const cookie = lucia.createSessionCookie(session.id);
 		cookies.set(cookie.name, cookie.value, { path: '.', ...cookie.attributes });
 		const next = url.searchParams.get('next');
-		redirect(303, next && /^\/[a-z0-9/_-]*$/i.test(next) ? next : '/');
+		redirect(303, next && /^\/(?!\/)[\w\-/?=&.%]*$/.test(next) ? next : '/');
 	}
 };

@@ -1,0 +1,7 @@
+#!/usr/bin/env bash
+# The test command: installs what the tests need, builds the app once, runs every suite.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+bash scripts/setup.sh --with-browser
+npm run build
+npx vitest run "$@"

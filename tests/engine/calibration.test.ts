@@ -214,6 +214,7 @@ describe('fastestWithin', () => {
 
 describe('calibration table and exports', () => {
 	const cold: ScenarioKey = { ...scenario, ambient_K: 253.15 };
+	const single = pt(1500, 2400, { leadTime_s: 900, setpoint_K: 303.15 });
 	const calibrations: ScenarioCalibration[] = [
 		// Knee at 300 Wh (see the Kneedle test above), lead time 30 min, 25 °C, 6 kW cap.
 		calibrateScenario(
@@ -225,18 +226,37 @@ describe('calibration table and exports', () => {
 			)
 		),
 		// Nothing beats the baseline; ids that need quoting and neutralising.
-		calibrateScenario(evaluation(3000, [pt(100, 3100)], { ...cold, cellId: '=HYPERLINK("http://x","y")', packId: 'pack, "big"\nv2' })),
+		calibrateScenario(
+			evaluation(3000, [pt(100, 3100)], {
+				...cold,
+				cellId: '=HYPERLINK("http://x","y")',
+				packId: 'pack, "big"\nv2'
+			})
+		),
 		// Text starting with + - @ and a negative ambient that must stay numeric.
-		calibrateScenario(evaluation(3000, [pt(1500, 2400, { leadTime_s: 900, setpoint_K: 303.15 })], { ...cold, cellId: '-cell', packId: '@pack' })),
-		calibrateScenario(evaluation(3000, [pt(1500, 2400, { leadTime_s: 900, setpoint_K: 303.15 })], { ...cold, cellId: '+cell', packId: 'plain' }))
+		calibrateScenario(evaluation(3000, [single], { ...cold, cellId: '-cell', packId: '@pack' })),
+		calibrateScenario(evaluation(3000, [single], { ...cold, cellId: '+cell', packId: 'plain' }))
 	];
 	const table = calibrationTable(calibrations);
 
 	it('should build one row per scenario with the pick or the baseline', () => {
 		// engine.md §5: scenario axes → recommended lead time and set-point.
 		expect(table).toHaveLength(4);
-		expect(table[0]).toMatchObject({ leadTime_s: 1800, setpoint_K: 298.15, heaterPowerCap_W: 6000, timeSaved_s: 1500, energy_Wh: 300, rule: 'kneedle' });
-		expect(table[1]).toMatchObject({ leadTime_s: null, setpoint_K: null, timeSaved_s: 0, energy_Wh: 0, rule: 'baseline' });
+		expect(table[0]).toMatchObject({
+			leadTime_s: 1800,
+			setpoint_K: 298.15,
+			heaterPowerCap_W: 6000,
+			timeSaved_s: 1500,
+			energy_Wh: 300,
+			rule: 'kneedle'
+		});
+		expect(table[1]).toMatchObject({
+			leadTime_s: null,
+			setpoint_K: null,
+			timeSaved_s: 0,
+			energy_Wh: 0,
+			rule: 'baseline'
+		});
 		expect(table[2]).toMatchObject({ leadTime_s: 900, rule: 'max-time-saved-per-kWh' });
 	});
 
@@ -281,7 +301,9 @@ describe('calibration table and exports', () => {
 
 	it('should round-trip through an independent RFC 4180 parser (papaparse)', () => {
 		// RFC 4180 §2 quoting rules; papaparse as the independent reference parser.
-		const parsed = Papa.parse<string[]>(calibrationCsv(table), { skipEmptyLines: true });
+		// Delimiter and line break are fixed by RFC 4180 (comma, CRLF); papaparse's
+		// auto-detection would otherwise guess a tab delimiter for tab-heavy text.
+		const parsed = Papa.parse<string[]>(calibrationCsv(table), { delimiter: ',', newline: '\r\n', skipEmptyLines: true });
 		expect(parsed.errors).toEqual([]);
 		const rows = parsed.data;
 		expect(rows[0]).toEqual([...CALIBRATION_CSV_HEADER]);
@@ -308,7 +330,7 @@ describe('calibration table and exports', () => {
 		fc.assert(
 			fc.property(idArb, idArb, (cellId, packId) => {
 				const t = calibrationTable([calibrateScenario(evaluation(100, [pt(1, 50)], { ...scenario, cellId, packId }))]);
-				const parsed = Papa.parse<string[]>(calibrationCsv(t), { skipEmptyLines: false });
+				const parsed = Papa.parse<string[]>(calibrationCsv(t), { delimiter: ',', newline: '\r\n' });
 				const guard = (s: string) => (/^[=+\-@\t\r]/.test(s) ? `'${s}` : s);
 				expect(parsed.data[1][3]).toBe(guard(cellId));
 				expect(parsed.data[1][4]).toBe(guard(packId));
@@ -326,5 +348,13 @@ describe('calibration table and exports', () => {
 		expect(Object.keys(doc.rows[0]).sort()).toEqual([...CALIBRATION_CSV_HEADER].sort());
 		expect(doc.rows[0]).toMatchObject({ ambient_C: -10, lead_time_min: 30, setpoint_C: 25, energy_kWh: 0.3, time_saved_min: 25 });
 		expect(doc.rows[1]).toMatchObject({ lead_time_min: null, setpoint_C: null, rule: 'baseline', cell: '=HYPERLINK("http://x","y")' });
+	});
+});
+
+describe('error handling', () => {
+	it('should refuse a missing baseline and an undefined energy budget, saying what to do', () => {
+		// Common practice, no source: a front without its baseline has no meaning.
+		expect(() => calibrateScenario(evaluation(NaN, [pt(1, 1)]))).toThrow(/rerun the baseline/);
+		expect(() => fastestWithin([], NaN)).toThrow(RangeError);
 	});
 });

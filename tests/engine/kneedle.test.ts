@@ -103,6 +103,16 @@ describe('kneedle', () => {
 			expect(r.kneeIndex).toBe(6);
 		});
 
+		it('should take the first point of a flat-topped difference curve', () => {
+			// Tie rule documented in kneedle.ts (ours; common practice, no source): on a
+			// plateau the lower-x point, i.e. the cheaper strategy, is the knee.
+			// d = [0, 0.3, 0.3, 0.1, 0] with identity normalisation; T = 0.3 − 0.25 = 0.05.
+			const x = linspace(0, 1, 5);
+			const d = [0, 0.3, 0.3, 0.1, 0];
+			const r = kneedle(x, x.map((v, i) => v + d[i]));
+			expect(r.kneeIndices).toEqual([1]);
+		});
+
 		it('should report every knee and recommend the first', () => {
 			// Satopää et al. 2011, step 6 applied to two well-separated maxima (hand-made data).
 			const x = linspace(0, 1, 11);

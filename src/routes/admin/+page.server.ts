@@ -45,11 +45,11 @@ export const actions: Actions = {
 			// A one-time password shown once; the person changes it via an invitation later if wanted.
 			const password = newId(10);
 			await createUser({ name, email, password, isAdmin });
-			return { action: 'create', created: { email, password } };
+			return { action: 'create', created: { email, password, link: null } };
 		}
 		const user = await createUser({ name, email, isAdmin });
 		const token = await createInvitation(user.id);
-		return { action: 'create', created: { email, link: `${url.origin}/invite/${token}` } };
+		return { action: 'create', created: { email, password: null, link: `${url.origin}/invite/${token}` } };
 	},
 	setActive: async ({ locals, request }) => {
 		const admin = requireAdmin(locals);
@@ -69,6 +69,6 @@ export const actions: Actions = {
 		const user = await User.findByPk(String(form.get('userId') ?? ''));
 		if (!user) return fail(404, { action: 'invite', message: 'That person no longer exists; reload the page.' });
 		const token = await createInvitation(user.id);
-		return { action: 'invite', created: { email: user.email, link: `${url.origin}/invite/${token}` } };
+		return { action: 'invite', created: { email: user.email, password: null, link: `${url.origin}/invite/${token}` } };
 	}
 };

@@ -9,3 +9,4 @@ export { SweepChunk } from './sweep-chunk';
 export { SweepPoint } from './sweep-point';
 export { SweepScenario } from './sweep-scenario';
 export { SweepSeries } from './sweep-series';
+export { Strategy, StrategyEvent, STRATEGY_STATES, type StrategyState } from './strategy';

@@ -144,6 +144,9 @@ const migration: Migration = {
 				knee_method: { type: DataTypes.STRING, allowNull: true },
 				rule_point_id: { type: DataTypes.INTEGER, allowNull: true },
 				no_strategy_beats_baseline: { type: DataTypes.BOOLEAN, allowNull: false },
+				// 'pending' until the front and baseline time series are stored; 'stored', 'failed'
+				// (they are then recomputed when opened) or 'none' (nothing to record).
+				series_status: { type: DataTypes.STRING, allowNull: false, defaultValue: 'pending' },
 				note: { type: DataTypes.TEXT, allowNull: true },
 				created_at: now
 			},

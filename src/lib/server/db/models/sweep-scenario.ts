@@ -18,6 +18,7 @@ export class SweepScenario extends Model {
 	declare knee_method: string | null;
 	declare rule_point_id: number | null;
 	declare no_strategy_beats_baseline: boolean;
+	declare series_status: 'pending' | 'stored' | 'failed' | 'none';
 	declare note: string | null;
 	declare created_at: CreationOptional<Date>;
 }
@@ -37,6 +38,7 @@ SweepScenario.init(
 		knee_method: { type: DataTypes.STRING, allowNull: true },
 		rule_point_id: { type: DataTypes.INTEGER, allowNull: true },
 		no_strategy_beats_baseline: { type: DataTypes.BOOLEAN, allowNull: false },
+		series_status: { type: DataTypes.STRING, allowNull: false, defaultValue: 'pending' },
 		note: { type: DataTypes.TEXT, allowNull: true }
 	},
 	{ sequelize, tableName: 'sweep_scenarios', underscored: true, timestamps: true, updatedAt: false }

@@ -1,0 +1,135 @@
+/**
+ * Starting and stopping everything the web process owns for sweeps:
+ *   1. the database (migrations),
+ *   2. Redis — REDIS_URL, or a private supervised redis-server under <PARETHERM_DATA_DIR>/redis,
+ *   3. the queue producer and its event listener (stores results as chunks complete),
+ *   4. a reconciliation pass (jobs finished or lost while the web process was down), repeated
+ *      every PARETHERM_RECONCILE_MS (default 15 s) as a safety net for missed events,
+ *   5. the in-process worker, unless workers run elsewhere.
+ *
+ * In-process worker: on by default when REDIS_URL is unset (the newcomer's single `npm start`),
+ * off by default with REDIS_URL (separate `npm run worker` processes do the computing).
+ * PARETHERM_IN_PROCESS_WORKER=1 or =0 overrides either default.
+ *
+ * Everything here uses relative imports and process.env, so scripts and tests run it under tsx.
+ */
+import { dataDir, ensureDb } from '../db/index';
+import { resolveRedis, describeTarget, type RedisTarget } from '../queue/connection';
+import type { PrivateRedis } from '../queue/redis-server';
+import { SweepQueue } from '../queue/producer';
+import { startSweepWorker, type SweepWorkerHandle } from '../queue/worker-runtime';
+import { activeQueue, recordProgress, setActiveQueue } from './registry';
+import { collectJob, handleJobFailed, reconcileSweeps } from './service';
+
+export interface SweepRuntime {
+	target: RedisTarget;
+	queue: SweepQueue;
+	privateRedis: PrivateRedis | null;
+	worker: SweepWorkerHandle | null;
+	stop(): Promise<void>;
+}
+
+export interface SweepRuntimeOptions {
+	/** Start a worker in this process (default: see the module comment). */
+	inProcessWorker?: boolean;
+	/** Threads for the in-process worker (default PARETHERM_WORKER_THREADS or the CPU count). */
+	threads?: number;
+	reconcileInterval_ms?: number;
+}
+
+const log = (m: string) => console.log(`[paretherm] ${m}`);
+
+let current: Promise<SweepRuntime> | null = null;
+
+export function inProcessWorkerWanted(env: NodeJS.ProcessEnv = process.env): boolean {
+	const flag = env.PARETHERM_IN_PROCESS_WORKER?.trim();
+	if (flag === '1' || flag === 'true') return true;
+	if (flag === '0' || flag === 'false') return false;
+	return !env.REDIS_URL?.trim();
+}
+
+/** Start the sweep runtime once per process (later calls return the same runtime). */
+export function startSweepRuntime(opts: SweepRuntimeOptions = {}): Promise<SweepRuntime> {
+	current ??= start(opts).catch((e) => {
+		current = null;
+		throw e;
+	});
+	return current;
+}
+
+/** The started runtime, or null. */
+export async function sweepRuntime(): Promise<SweepRuntime | null> {
+	return current ? current.catch(() => null) : null;
+}
+
+export async function stopSweepRuntime(): Promise<void> {
+	const rt = await sweepRuntime();
+	current = null;
+	await rt?.stop();
+}
+
+/** Start a BullMQ worker inside this process on the runtime's Redis (the runtime must be started). */
+export async function startInProcessWorker(threads?: number): Promise<SweepWorkerHandle> {
+	const rt = await sweepRuntime();
+	if (!rt) throw new Error('Start the sweep runtime (startSweepRuntime) before its in-process worker.');
+	if (rt.worker) return rt.worker;
+	rt.worker = await startSweepWorker({ target: rt.target, threads, log: (m) => console.log(`[paretherm worker] ${m}`) });
+	return rt.worker;
+}
+
+async function start(opts: SweepRuntimeOptions): Promise<SweepRuntime> {
+	await ensureDb();
+	const { target, privateServer } = await resolveRedis({ dataDir: dataDir(), log });
+	if (!privateServer) log(`sweep queue on ${describeTarget(target)}`);
+	const queue = new SweepQueue(target);
+	await queue.ready();
+
+	// Events may arrive in any order and more than once; every handler below is idempotent.
+	const safely = (what: string, p: Promise<unknown>) => p.catch((e) => log(`${what}: ${(e as Error).message}`));
+	await queue.listen({
+		onCompleted: (jobId) => void safely(`storing the result of ${jobId}`, collectJob(queue, jobId)),
+		onFailed: (jobId, reason) => void safely(`handling the failure of ${jobId}`, handleJobFailed(queue, jobId, reason)),
+		onProgress: (jobId, p) => recordProgress(jobId, p)
+	});
+	setActiveQueue(queue);
+
+	const report = await reconcileSweeps(queue);
+	if (report.sweeps > 0)
+		log(`reconciled ${report.sweeps} unfinished sweep(s): ${report.collected} chunk result(s) collected, ${report.requeued} job(s) re-queued`);
+
+	const intervalMs = opts.reconcileInterval_ms ?? (Number(process.env.PARETHERM_RECONCILE_MS) || 15_000);
+	let reconciling = false;
+	const timer = setInterval(() => {
+		if (reconciling) return;
+		reconciling = true;
+		safely('periodic reconciliation', reconcileSweeps(queue)).finally(() => (reconciling = false));
+	}, intervalMs);
+	timer.unref();
+
+	const rt: SweepRuntime = {
+		target,
+		queue,
+		privateRedis: privateServer,
+		worker: null,
+		async stop() {
+			clearInterval(timer);
+			if (activeQueue() === queue) setActiveQueue(null);
+			await rt.worker?.close();
+			await queue.close();
+			await privateServer?.stop();
+		}
+	};
+	if (opts.inProcessWorker ?? inProcessWorkerWanted()) {
+		rt.worker = await startSweepWorker({
+			target,
+			threads: opts.threads,
+			log: (m) => console.log(`[paretherm worker] ${m}`)
+		});
+	} else {
+		log('no in-process sweep worker: start `npm run worker` processes against the same Redis');
+	}
+
+	// adapter-node emits this on SIGINT/SIGTERM after the HTTP server has closed.
+	process.once('sveltekit:shutdown' as never, () => void stopSweepRuntime());
+	return rt;
+}

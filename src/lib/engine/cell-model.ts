@@ -40,7 +40,7 @@
 import type { CellParams } from './schemas';
 import { ImplicitDiffusion, SphericalParticle } from './diffusion';
 import { cellWindow, type CellWindow } from './cell-window';
-import { makeEntropic, makeOcp } from './ocp';
+import { makeEntropic, makeOcp, tabulateUnit } from './ocp';
 import { arrhenius, FARADAY_C_per_mol, GAS_CONSTANT_J_per_molK, REFERENCE_TEMP_K } from './units';
 
 const ELECTROLYTE_CELLS = { negative: 3, separator: 2, positive: 3 } as const;
@@ -113,10 +113,11 @@ export class CellModel {
 		const p = cell.positive;
 		this.negative = new SphericalParticle(n.particleRadius_m, shells);
 		this.positive = new SphericalParticle(p.particleRadius_m, shells);
-		this.Un = makeOcp(n.ocp);
-		this.Up = makeOcp(p.ocp);
-		this.dUn = makeEntropic(n.entropic);
-		this.dUp = makeEntropic(p.entropic);
+		// Tabulated for speed (see tabulateUnit); stoichiometries are clamped to [0, 1] here anyway.
+		this.Un = tabulateUnit(makeOcp(n.ocp));
+		this.Up = tabulateUnit(makeOcp(p.ocp));
+		this.dUn = tabulateUnit(makeEntropic(n.entropic), 1025);
+		this.dUp = tabulateUnit(makeEntropic(p.entropic), 1025);
 		this.area_m2 = cell.electrodeArea_m2;
 		this.cmaxN = n.maxConcentration_mol_m3;
 		this.cmaxP = p.maxConcentration_mol_m3;

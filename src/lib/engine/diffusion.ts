@@ -33,7 +33,6 @@ export class ImplicitDiffusion {
 	private readonly g0: Float64Array;
 	private readonly source: Float64Array;
 	private readonly diag: Float64Array;
-	private readonly w: Float64Array;
 	private readonly sup: Float64Array;
 
 	/**
@@ -50,7 +49,6 @@ export class ImplicitDiffusion {
 		this.hom = new Float64Array(this.n);
 		this.resp = new Float64Array(this.n);
 		this.diag = new Float64Array(this.n);
-		this.w = new Float64Array(this.n);
 		this.sup = new Float64Array(this.n);
 	}
 
@@ -64,32 +62,34 @@ export class ImplicitDiffusion {
 	/** Factor the step matrix for step dt_s and conductance factor, and solve for hom and resp. */
 	prepare(dt_s: number, factor: number): void {
 		const n = this.n;
-		const { cap, g0, diag, w, sup, hom, resp, c, source } = this;
-		// Assemble and factor (forward sweep of the Thomas algorithm).
+		const { cap, g0, diag, sup, hom, resp, c, source } = this;
+		const invDt = 1 / dt_s;
+		// Forward sweep of the Thomas algorithm; diag holds reciprocal pivots.
+		let prevInv = 0;
+		let prevSup = 0;
+		let h = 0;
+		let r = 0;
 		for (let i = 0; i < n; i++) {
-			let d = cap[i] / dt_s;
-			if (i > 0) d += factor * g0[i - 1];
-			if (i < n - 1) {
-				d += factor * g0[i];
-				sup[i] = -factor * g0[i];
-			}
-			diag[i] = d;
+			const gl = i > 0 ? factor * g0[i - 1] : 0;
+			const gr = i < n - 1 ? factor * g0[i] : 0;
+			const capDt = cap[i] * invDt;
+			const m = -gl * prevInv; // sub-diagonal / previous pivot
+			const pivot = capDt + gl + gr - m * prevSup;
+			const inv = 1 / pivot;
+			h = capDt * c[i] - m * h;
+			r = source[i] - m * r;
+			hom[i] = h;
+			resp[i] = r;
+			diag[i] = inv;
+			sup[i] = -gr;
+			prevInv = inv;
+			prevSup = -gr;
 		}
-		hom[0] = (cap[0] / dt_s) * c[0];
-		resp[0] = source[0];
-		for (let i = 1; i < n; i++) {
-			const sub = -factor * g0[i - 1];
-			const m = sub / diag[i - 1];
-			w[i] = m;
-			diag[i] -= m * sup[i - 1];
-			hom[i] = (cap[i] / dt_s) * c[i] - m * hom[i - 1];
-			resp[i] = source[i] - m * resp[i - 1];
-		}
-		hom[n - 1] /= diag[n - 1];
-		resp[n - 1] /= diag[n - 1];
+		hom[n - 1] *= diag[n - 1];
+		resp[n - 1] *= diag[n - 1];
 		for (let i = n - 2; i >= 0; i--) {
-			hom[i] = (hom[i] - sup[i] * hom[i + 1]) / diag[i];
-			resp[i] = (resp[i] - sup[i] * resp[i + 1]) / diag[i];
+			hom[i] = (hom[i] - sup[i] * hom[i + 1]) * diag[i];
+			resp[i] = (resp[i] - sup[i] * resp[i + 1]) * diag[i];
 		}
 	}
 

@@ -49,39 +49,40 @@ const tableX = (label: string) =>
 		.min(2, `${label} needs at least two points`)
 		.refine(strictlyIncreasing, `${label} must be strictly increasing`);
 
-export const ocpSpecSchema = z.discriminatedUnion(
-	'kind',
-	[
-		z.object({ kind: z.literal('fit'), fit: z.enum(['graphite', 'nmc811'], { message: "fit must be 'graphite' or 'nmc811'" }) }),
-		z
-			.object({
+export const ocpSpecSchema = z
+	.discriminatedUnion(
+		'kind',
+		[
+			z.object({ kind: z.literal('fit'), fit: z.enum(['graphite', 'nmc811'], { message: "fit must be 'graphite' or 'nmc811'" }) }),
+			z.object({
 				kind: z.literal('table'),
 				stoichiometry: tableX('OCP table stoichiometry'),
 				potential_V: z.array(num('OCP table potential', -1, 6, fmt.volts)).min(2)
 			})
-			.superRefine((t, ctx) => {
-				if (t.stoichiometry.length !== t.potential_V.length) {
-					ctx.addIssue({
-						code: z.ZodIssueCode.custom,
-						path: ['potential_V'],
-						message: `the OCP table has ${t.stoichiometry.length} stoichiometries but ${t.potential_V.length} potentials; give one potential per stoichiometry`
-					});
-					return;
-				}
-				for (let i = 1; i < t.potential_V.length; i++) {
-					if (t.potential_V[i] > t.potential_V[i - 1]) {
-						ctx.addIssue({
-							code: z.ZodIssueCode.custom,
-							path: ['potential_V', i],
-							message: `the OCP must not rise with lithiation, but it goes from ${fmt.volts(t.potential_V[i - 1])} to ${fmt.volts(t.potential_V[i])} at stoichiometry ${t.stoichiometry[i]}; check the table order`
-						});
-						return;
-					}
-				}
-			})
-	],
-	{ errorMap: () => ({ message: "ocp.kind must be 'fit' or 'table'" }) }
-);
+		],
+		{ errorMap: () => ({ message: "ocp.kind must be 'fit' or 'table'" }) }
+	)
+	.superRefine((t, ctx) => {
+		if (t.kind !== 'table') return;
+		if (t.stoichiometry.length !== t.potential_V.length) {
+			ctx.addIssue({
+				code: z.ZodIssueCode.custom,
+				path: ['potential_V'],
+				message: `the OCP table has ${t.stoichiometry.length} stoichiometries but ${t.potential_V.length} potentials; give one potential per stoichiometry`
+			});
+			return;
+		}
+		for (let i = 1; i < t.potential_V.length; i++) {
+			if (t.potential_V[i] > t.potential_V[i - 1]) {
+				ctx.addIssue({
+					code: z.ZodIssueCode.custom,
+					path: ['potential_V', i],
+					message: `the OCP must not rise with lithiation, but it goes from ${fmt.volts(t.potential_V[i - 1])} to ${fmt.volts(t.potential_V[i])} at stoichiometry ${t.stoichiometry[i]}; check the table order`
+				});
+				return;
+			}
+		}
+	});
 
 export const entropicTableSchema = z
 	.object({
@@ -290,33 +291,34 @@ export const packDesignSchema = z
 
 export const BUILTIN_DRIVE_PROFILES = ['urban', 'highway', 'mixed'] as const;
 
-const driveProfileSchema = z.discriminatedUnion(
-	'kind',
-	[
-		z.object({ kind: z.literal('constant'), power_W: num('drive power', -5e5, 1e6, fmt.power) }),
-		z.object({
-			kind: z.literal('builtin'),
-			name: z.enum(BUILTIN_DRIVE_PROFILES, { message: "built-in profile must be 'urban', 'highway' or 'mixed'" }),
-			averagePower_W: num('average drive power', 0, 1e6, fmt.power)
-		}),
-		z
-			.object({
+const driveProfileSchema = z
+	.discriminatedUnion(
+		'kind',
+		[
+			z.object({ kind: z.literal('constant'), power_W: num('drive power', -5e5, 1e6, fmt.power) }),
+			z.object({
+				kind: z.literal('builtin'),
+				name: z.enum(BUILTIN_DRIVE_PROFILES, { message: "built-in profile must be 'urban', 'highway' or 'mixed'" }),
+				averagePower_W: num('average drive power', 0, 1e6, fmt.power)
+			}),
+			z.object({
 				kind: z.literal('table'),
 				time_s: z.array(num('drive table time', 0, 1e6, fmt.minutes)).min(2, 'the drive table needs at least two points'),
 				power_W: z.array(num('drive table power', -5e5, 1e6, fmt.power)).min(2)
 			})
-			.superRefine((t, ctx) => {
-				if (t.time_s.length !== t.power_W.length) {
-					ctx.addIssue({ code: z.ZodIssueCode.custom, path: ['power_W'], message: `the drive table has ${t.time_s.length} times but ${t.power_W.length} powers; give one power per time` });
-				} else if (!strictlyIncreasing(t.time_s)) {
-					ctx.addIssue({ code: z.ZodIssueCode.custom, path: ['time_s'], message: 'drive table times must be strictly increasing' });
-				} else if (t.time_s[0] !== 0) {
-					ctx.addIssue({ code: z.ZodIssueCode.custom, path: ['time_s', 0], message: 'the drive table must start at time 0 (departure)' });
-				}
-			})
-	],
-	{ errorMap: () => ({ message: "drive profile kind must be 'constant', 'builtin' or 'table'" }) }
-);
+		],
+		{ errorMap: () => ({ message: "drive profile kind must be 'constant', 'builtin' or 'table'" }) }
+	)
+	.superRefine((t, ctx) => {
+		if (t.kind !== 'table') return;
+		if (t.time_s.length !== t.power_W.length) {
+			ctx.addIssue({ code: z.ZodIssueCode.custom, path: ['power_W'], message: `the drive table has ${t.time_s.length} times but ${t.power_W.length} powers; give one power per time` });
+		} else if (!strictlyIncreasing(t.time_s)) {
+			ctx.addIssue({ code: z.ZodIssueCode.custom, path: ['time_s'], message: 'drive table times must be strictly increasing' });
+		} else if (t.time_s[0] !== 0) {
+			ctx.addIssue({ code: z.ZodIssueCode.custom, path: ['time_s', 0], message: 'the drive table must start at time 0 (departure)' });
+		}
+	});
 
 export const scenarioSchema = z
 	.object({

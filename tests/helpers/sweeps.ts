@@ -8,9 +8,10 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import net from 'node:net';
+import { fileURLToPath } from 'node:url';
 import { Redis } from 'ioredis';
 
-export const ROOT = path.resolve(__dirname, '../..');
+export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 export const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
 export const C = (celsius: number) => celsius + 273.15;
 

@@ -366,7 +366,7 @@ export const scenarioSchema = z
 
 export const strategySchema = z.object({
 	leadTime_s: num('pre-conditioning lead time', 0, 86_400, fmt.minutes),
-	coolantSetpoint_K: temp('coolant set-point', -30, 90),
+	coolantSetpoint_K: temp('coolant set-point', -30, 120),
 	heaterPowerCap_W: nonNegative('heater power cap', 1e5, fmt.power).optional()
 });
 

@@ -27,59 +27,34 @@
 import { inv } from 'mathjs';
 import type { CellParams, PackDesign } from './schemas';
 
-export interface ThermalSources {
-	/** Heat into each node, W (cells: generation; coolant: heater − chiller). */
-	q_W: Float64Array;
-}
-
-export class PackThermal {
-	/** Node count: groups, then coolant, then enclosure. */
+/**
+ * A general lumped network: capacities (J/K), symmetric links (W/K) and
+ * conductances to ambient (W/K), stepped by backward Euler.
+ */
+export class LumpedNetwork {
 	readonly n: number;
-	readonly groups: number;
-	readonly coolant: number;
-	readonly enclosure: number;
 	readonly capacity_J_per_K: Float64Array;
 	readonly temp_K: Float64Array;
-	/** Cells per group. */
-	readonly cellsPerGroup: Float64Array;
-	private readonly lap: number[][];
-	private readonly ambientUA_W_per_K: Float64Array;
+	/** Temperatures after the prepared step with no heat into the "response" nodes. */
+	readonly base_K: Float64Array;
+	protected readonly lap: number[][];
+	protected readonly ambientUA_W_per_K: Float64Array;
 	private cachedDt = -1;
 	private minv: Float64Array[] = [];
-	/** Temperatures after the step for zero cell heat (prepared). */
-	readonly base_K: Float64Array;
 	private readonly rhs: Float64Array;
 
-	constructor(pack: PackDesign, cell: CellParams, initialTemp_K: number) {
-		const G = pack.cellGroups.length;
-		this.groups = G;
-		this.coolant = G;
-		this.enclosure = G + 1;
-		this.n = G + 2;
-		const n = this.n;
-		const th = pack.thermal;
-		const nCells = pack.seriesCount * pack.parallelCount;
-		this.cellsPerGroup = Float64Array.from(pack.cellGroups.map((g) => g.share * nCells));
-		this.capacity_J_per_K = new Float64Array(n);
-		for (let g = 0; g < G; g++) this.capacity_J_per_K[g] = this.cellsPerGroup[g] * cell.thermal.mass_kg * cell.thermal.specificHeat_J_per_kgK;
-		this.capacity_J_per_K[this.coolant] =
-			th.coolantVolume_m3 * th.coolantDensity_kg_per_m3 * th.coolantSpecificHeat_J_per_kgK + th.plateHeatCapacity_J_per_K;
-		this.capacity_J_per_K[this.enclosure] = th.enclosureHeatCapacity_J_per_K;
+	constructor(capacity_J_per_K: number[], links: { a: number; b: number; ua_W_per_K: number }[], ambientUA_W_per_K: number[], initialTemp_K: number) {
+		const n = capacity_J_per_K.length;
+		this.n = n;
+		this.capacity_J_per_K = Float64Array.from(capacity_J_per_K);
 		this.lap = Array.from({ length: n }, () => new Array<number>(n).fill(0));
-		const link = (i: number, j: number, ua: number) => {
-			this.lap[i][i] += ua;
-			this.lap[j][j] += ua;
-			this.lap[i][j] -= ua;
-			this.lap[j][i] -= ua;
-		};
-		for (let g = 0; g < G; g++) {
-			const perCell = 1 / (1 / (th.plateConductancePerCell_W_per_K * pack.cellGroups[g].coolingFactor) + cell.thermal.coreToSurfaceResistance_K_per_W);
-			link(g, this.coolant, perCell * this.cellsPerGroup[g]);
-			link(g, this.enclosure, th.cellsToEnclosure_W_per_K * pack.cellGroups[g].share);
+		for (const { a, b, ua_W_per_K: ua } of links) {
+			this.lap[a][a] += ua;
+			this.lap[b][b] += ua;
+			this.lap[a][b] -= ua;
+			this.lap[b][a] -= ua;
 		}
-		link(this.coolant, this.enclosure, th.coolantToEnclosure_W_per_K);
-		this.ambientUA_W_per_K = new Float64Array(n);
-		this.ambientUA_W_per_K[this.enclosure] = th.enclosureToAmbient_W_per_K;
+		this.ambientUA_W_per_K = Float64Array.from(ambientUA_W_per_K);
 		this.temp_K = new Float64Array(n).fill(initialTemp_K);
 		this.base_K = new Float64Array(n);
 		this.rhs = new Float64Array(n);
@@ -92,16 +67,25 @@ export class PackThermal {
 		return s;
 	}
 
+	/** Right-hand side of the ODE, dT/dt (K/s), for given node heats: used to cross-check with an ODE solver. */
+	derivative(temp_K: ArrayLike<number>, heat_W: ArrayLike<number>, ambient_K: number): number[] {
+		const out: number[] = [];
+		for (let i = 0; i < this.n; i++) {
+			let q = heat_W[i] - this.ambientUA_W_per_K[i] * (temp_K[i] - ambient_K);
+			for (let j = 0; j < this.n; j++) q -= this.lap[i][j] * temp_K[j];
+			out.push(q / this.capacity_J_per_K[i]);
+		}
+		return out;
+	}
+
 	private factor(dt_s: number): void {
 		if (dt_s === this.cachedDt) return;
-		const n = this.n;
 		const m: number[][] = this.lap.map((row, i) =>
 			row.map((v, j) => v + (i === j ? this.capacity_J_per_K[i] / dt_s + this.ambientUA_W_per_K[i] : 0))
 		);
 		const mi = inv(m) as number[][];
 		this.minv = mi.map((row) => Float64Array.from(row));
 		this.cachedDt = dt_s;
-		void n;
 	}
 
 	/** Response of node i's new temperature to 1 W into node j (K/W) for the prepared step. */
@@ -110,16 +94,18 @@ export class PackThermal {
 	}
 
 	/**
-	 * Prepare a step: temperatures after the step with the given coolant heat
-	 * (heater − chiller, W) and no cell heat go to `base_K`; cell heat adds
-	 * response(i, g)·Q_g.
+	 * Prepare a step with fixed heats into the nodes (`fixedHeat_W`, W): the
+	 * temperatures after the step go to `base_K`; extra heat Q_j into node j
+	 * adds response(i, j)·Q_j.
 	 */
-	prepare(dt_s: number, ambient_K: number, coolantHeat_W: number): void {
+	prepareWith(dt_s: number, ambient_K: number, fixedHeat_W: ArrayLike<number> | null): void {
 		this.factor(dt_s);
 		const n = this.n;
 		const rhs = this.rhs;
-		for (let i = 0; i < n; i++) rhs[i] = (this.capacity_J_per_K[i] / dt_s) * this.temp_K[i] + this.ambientUA_W_per_K[i] * ambient_K;
-		rhs[this.coolant] += coolantHeat_W;
+		for (let i = 0; i < n; i++) {
+			rhs[i] = (this.capacity_J_per_K[i] / dt_s) * this.temp_K[i] + this.ambientUA_W_per_K[i] * ambient_K;
+			if (fixedHeat_W) rhs[i] += fixedHeat_W[i];
+		}
 		for (let i = 0; i < n; i++) {
 			let s = 0;
 			const row = this.minv[i];
@@ -128,17 +114,69 @@ export class PackThermal {
 		}
 	}
 
-	/** Commit the prepared step with cell heat per group (W, whole group). Returns the heat lost to ambient, W. */
-	commit(groupHeat_W: ArrayLike<number>, ambient_K: number): number {
+	/** Commit the prepared step with extra heat into the first nodes (W). Returns the heat lost to ambient, W. */
+	commitWith(extraHeat_W: ArrayLike<number>, ambient_K: number): number {
 		const n = this.n;
+		const k = extraHeat_W.length;
 		for (let i = 0; i < n; i++) {
 			let t = this.base_K[i];
-			for (let g = 0; g < this.groups; g++) t += this.minv[i][g] * groupHeat_W[g];
+			for (let g = 0; g < k; g++) t += this.minv[i][g] * extraHeat_W[g];
 			this.temp_K[i] = t;
 		}
 		let loss = 0;
 		for (let i = 0; i < n; i++) loss += this.ambientUA_W_per_K[i] * (this.temp_K[i] - ambient_K);
 		return loss;
+	}
+}
+
+/** The pack's network: nodes 0…G−1 cell groups, then coolant (with cold plate), then enclosure. */
+export class PackThermal extends LumpedNetwork {
+	readonly groups: number;
+	readonly coolant: number;
+	readonly enclosure: number;
+	/** Cells per group. */
+	readonly cellsPerGroup: Float64Array;
+	private readonly fixed: Float64Array;
+
+	constructor(pack: PackDesign, cell: CellParams, initialTemp_K: number) {
+		const G = pack.cellGroups.length;
+		const th = pack.thermal;
+		const nCells = pack.seriesCount * pack.parallelCount;
+		const cellsPerGroup = pack.cellGroups.map((g) => g.share * nCells);
+		const coolant = G;
+		const enclosure = G + 1;
+		const capacity = [
+			...cellsPerGroup.map((n) => n * cell.thermal.mass_kg * cell.thermal.specificHeat_J_per_kgK),
+			th.coolantVolume_m3 * th.coolantDensity_kg_per_m3 * th.coolantSpecificHeat_J_per_kgK + th.plateHeatCapacity_J_per_K,
+			th.enclosureHeatCapacity_J_per_K
+		];
+		const links: { a: number; b: number; ua_W_per_K: number }[] = [];
+		pack.cellGroups.forEach((g, i) => {
+			// Plate conductance in series with the cell's core-to-surface conduction resistance.
+			const perCell = 1 / (1 / (th.plateConductancePerCell_W_per_K * g.coolingFactor) + cell.thermal.coreToSurfaceResistance_K_per_W);
+			links.push({ a: i, b: coolant, ua_W_per_K: perCell * cellsPerGroup[i] });
+			links.push({ a: i, b: enclosure, ua_W_per_K: th.cellsToEnclosure_W_per_K * g.share });
+		});
+		links.push({ a: coolant, b: enclosure, ua_W_per_K: th.coolantToEnclosure_W_per_K });
+		const ambient = new Array<number>(G + 2).fill(0);
+		ambient[enclosure] = th.enclosureToAmbient_W_per_K;
+		super(capacity, links, ambient, initialTemp_K);
+		this.groups = G;
+		this.coolant = coolant;
+		this.enclosure = enclosure;
+		this.cellsPerGroup = Float64Array.from(cellsPerGroup);
+		this.fixed = new Float64Array(G + 2);
+	}
+
+	/** Prepare a step with heater − chiller heat into the coolant (W); cell heats are added at commit. */
+	prepare(dt_s: number, ambient_K: number, coolantHeat_W: number): void {
+		this.fixed[this.coolant] = coolantHeat_W;
+		this.prepareWith(dt_s, ambient_K, this.fixed);
+	}
+
+	/** Commit with the heat of each cell group (W, whole group). Returns the heat lost to ambient, W. */
+	commit(groupHeat_W: ArrayLike<number>, ambient_K: number): number {
+		return this.commitWith(groupHeat_W, ambient_K);
 	}
 }
 

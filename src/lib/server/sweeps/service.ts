@@ -25,6 +25,7 @@ import type { SweepQueue } from '../queue/producer';
 import { activeQueue, clearProgress } from './registry';
 import { resolveSweepInputs, scenarioInputsFor, strategyInput, type SweepInputs } from './inputs';
 import { parseSweepRequest } from './request';
+import { notifySweepFinished } from '../mail/sweep-digest';
 
 export { SweepInputError } from './request';
 
@@ -446,8 +447,20 @@ export function persistSeriesResult(result: SeriesJobResult, queueToken: string)
 
 async function completeIfSeriesDone(sweepId: number, transaction: Transaction): Promise<void> {
 	const pending = await SweepScenario.count({ where: { sweep_id: sweepId, series_status: 'pending' }, transaction });
-	if (pending === 0)
-		await Sweep.update({ status: 'done', finished_at: new Date() }, { where: { id: sweepId, status: 'finalizing' }, transaction });
+	if (pending === 0) {
+		const [n] = await Sweep.update({ status: 'done', finished_at: new Date() }, { where: { id: sweepId, status: 'finalizing' }, transaction });
+		if (n > 0) transaction.afterCommit(() => digestAfter(sweepId));
+	}
+}
+
+/** Mail digest (src/lib/server/mail), written after the status change; a mail problem never fails the sweep. */
+function digestAfter(sweepId: number): void {
+	const later = (e: unknown) => log(`digest of sweep ${sweepId} not written now (${(e as Error)?.message}); the mail dispatcher retries`);
+	try {
+		notifySweepFinished(sweepId).catch(later);
+	} catch (e) {
+		later(e);
+	}
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -479,6 +492,7 @@ export async function failSweep(sweepId: number, reason: string): Promise<boolea
 	});
 	if (changed) {
 		log(`sweep ${sweepId} failed: ${reason}`);
+		digestAfter(sweepId);
 		await withdrawJobs(sweepId);
 	}
 	return changed;

@@ -10,3 +10,5 @@ export { SweepPoint } from './sweep-point';
 export { SweepScenario } from './sweep-scenario';
 export { SweepSeries } from './sweep-series';
 export { Strategy, StrategyEvent, STRATEGY_STATES, type StrategyState } from './strategy';
+export { MailOutbox, MailMark, MAIL_STATUSES, type MailStatus, type MailKind } from './mail-outbox';
+export { NotificationSetting, NotificationItem, STRATEGY_MODES, type StrategyMode } from './notification';

@@ -39,6 +39,7 @@ export interface QueueEventHandlers {
 export class SweepQueue {
 	readonly queue: Queue;
 	private events: QueueEvents | null = null;
+	private eventsClient: Redis | null = null;
 	private readonly client: Redis;
 	private readonly target: RedisTarget;
 
@@ -56,7 +57,11 @@ export class SweepQueue {
 
 	/** Subscribe to completions, failures and progress (a separate blocking connection). */
 	async listen(handlers: QueueEventHandlers): Promise<void> {
-		const events = new QueueEvents(SWEEP_QUEUE, { connection: createRedisClient(this.target), prefix: QUEUE_PREFIX });
+		// A client of its own (QueueEvents blocks on XREAD); BullMQ leaves passed-in clients open,
+		// so close() disconnects it.
+		this.eventsClient = createRedisClient(this.target);
+		this.eventsClient.on('error', (e) => console.error(`[paretherm] Redis (queue events) error: ${e.message}`));
+		const events = new QueueEvents(SWEEP_QUEUE, { connection: this.eventsClient, prefix: QUEUE_PREFIX });
 		events.on('error', (e) => console.error(`[paretherm] queue events error: ${(e as Error).message}`));
 		if (handlers.onCompleted) events.on('completed', ({ jobId }) => handlers.onCompleted!(jobId));
 		if (handlers.onFailed) events.on('failed', ({ jobId, failedReason }) => handlers.onFailed!(jobId, failedReason));
@@ -119,6 +124,7 @@ export class SweepQueue {
 
 	async close(): Promise<void> {
 		await this.events?.close();
+		this.eventsClient?.disconnect();
 		await this.queue.close();
 		this.client.disconnect();
 	}

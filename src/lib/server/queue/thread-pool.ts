@@ -85,6 +85,7 @@ export class SimulationPool {
 	private closed = false;
 	private startupFailures = 0;
 	private readonly bootstrap: string;
+	private readyWaiters: { resolve: () => void; reject: (e: Error) => void }[] = [];
 	private readonly entryUrl: string;
 	private readonly tsxUrl: string;
 
@@ -120,6 +121,7 @@ export class SimulationPool {
 		if (msg.type === 'ready') {
 			slot.ready = true;
 			this.startupFailures = 0;
+			if (this.slots.every((s) => s.ready)) for (const w of this.readyWaiters.splice(0)) w.resolve();
 			this.dispatch();
 			return;
 		}
@@ -152,6 +154,7 @@ export class SimulationPool {
 			this.slots.splice(idx, 1);
 			const reason = new Error(`Simulation threads fail to start (${err.message}); see the log above.`);
 			if (this.slots.every((s) => !s.ready)) for (const p of this.queue.splice(0)) p.reject(reason);
+			for (const w of this.readyWaiters.splice(0)) w.reject(reason);
 			return;
 		}
 		this.slots[idx] = this.spawn();
@@ -164,6 +167,16 @@ export class SimulationPool {
 			slot.current = next;
 			slot.worker.postMessage({ id: next.id, ...next.body } as ThreadRequest);
 		}
+	}
+
+	/**
+	 * Resolves once every thread has loaded the engine (loading TypeScript in a fresh thread takes
+	 * a second or two), so a worker does not take jobs, and a benchmark does not start its clock,
+	 * before it can compute.
+	 */
+	ready(): Promise<void> {
+		if (this.slots.length > 0 && this.slots.every((s) => s.ready)) return Promise.resolve();
+		return new Promise((resolve, reject) => this.readyWaiters.push({ resolve, reject }));
 	}
 
 	run<T>(body: RequestBody, onProgress?: (done: number, total: number) => void): Promise<T> {

@@ -51,6 +51,7 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 	const threads = opts.threads ?? defaultThreadCount();
 	const workerId = opts.workerId ?? `${os.hostname()}:${process.pid}`;
 	const pool = new SimulationPool(threads);
+	await pool.ready();
 	const connection = createRedisClient(opts.target);
 	connection.on('error', (e) => log(`Redis connection error: ${e.message}`));
 	const { lockDuration, stalledInterval } = lockSettings(opts);

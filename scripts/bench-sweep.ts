@@ -1,0 +1,132 @@
+/**
+ * Sweep throughput benchmark (chained into `npm run bench`; alone: `npx tsx scripts/bench-sweep.ts`).
+ *
+ * Runs the engine's reference sweep — 10 lead times × 8 coolant set-points × 3 ambients × 2 states
+ * of health = 480 grid points, plus one baseline per scenario — with 1 and then 2 simulation
+ * threads, two ways:
+ *   - "queue":  the production path: private redis-server, BullMQ chunk jobs, in-process worker,
+ *               results stored in SQLite by the sweep service (create → every chunk stored).
+ *   - "pool":   the same chunks and persistence dispatched straight to the thread pool, without
+ *               Redis, to show what the queue itself costs.
+ * Thread start-up (loading the TypeScript engine into each thread) happens before the clock starts.
+ * Everything lives in a temporary data folder that is removed afterwards.
+ *
+ * Flags: --pool-only (skip the queue runs), --threads=1,2 (thread counts to try).
+ */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+
+const args = process.argv.slice(2);
+const poolOnly = args.includes('--pool-only');
+const threadCounts = (args.find((a) => a.startsWith('--threads='))?.slice('--threads='.length) ?? '1,2')
+	.split(',')
+	.map(Number)
+	.filter((n) => Number.isInteger(n) && n > 0);
+
+const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'paretherm-bench-'));
+process.env.PARETHERM_DATA_DIR = dataDir;
+delete process.env.REDIS_URL; // always the private server: the benchmark must not touch a shared Redis
+process.env.PARETHERM_QUEUE_PREFIX = `bench${process.pid}`;
+
+// Dynamic imports: the database module reads PARETHERM_DATA_DIR when it is loaded.
+const { ensureDb } = await import('../src/lib/server/db/index');
+const { Program, ParameterSet, Sweep } = await import('../src/lib/server/db/models/index');
+const { demoCells, demoPack, exampleScenario, REFERENCE_SWEEP_AXES } = await import('../src/lib/engine/index');
+const { createSweep } = await import('../src/lib/server/sweeps/service');
+const { runSweepInline } = await import('../src/lib/server/sweeps/inline');
+const { startSweepRuntime, stopSweepRuntime } = await import('../src/lib/server/sweeps/runtime');
+
+const quiet = process.env.PARETHERM_BENCH_VERBOSE ? console.log : () => {};
+const origLog = console.log;
+
+interface Row {
+	path: string;
+	threads: number;
+	simulations: number;
+	wall_s: number;
+}
+
+async function main() {
+	await ensureDb();
+	const program = await Program.create({ name: 'Benchmark', description: 'reference sweep' });
+	for (const [kind, slug, data] of [
+		['cell', demoCells[0].id, demoCells[0]],
+		['pack', demoPack.id, demoPack],
+		['scenario', 'example', exampleScenario]
+	] as const)
+		await ParameterSet.create({ program_id: program.id, kind, slug, version: 1, name: slug, data: JSON.stringify(data), created_by: null });
+
+	const request = {
+		name: 'Reference sweep',
+		scenarioId: 'example',
+		definition: {
+			cellIds: [demoCells[0].id],
+			packIds: [demoPack.id],
+			ambients_K: [...REFERENCE_SWEEP_AXES.ambient_K],
+			statesOfHealth: [...REFERENCE_SWEEP_AXES.stateOfHealth],
+			arrivalSocs: [exampleScenario.arrivalSoc],
+			leadTimes_s: [...REFERENCE_SWEEP_AXES.leadTime_s],
+			setpoints_K: [...REFERENCE_SWEEP_AXES.coolantSetpoint_K]
+		}
+	};
+
+	const rows: Row[] = [];
+	let gridPoints = 0;
+	for (const threads of threadCounts) {
+		// Pool path.
+		{
+			const sweep = await createSweep(program.id, null, request);
+			gridPoints = sweep.grid_points;
+			const r = await runSweepInline(sweep.id, { threads });
+			if (r.status !== 'done') throw new Error(`The pool run ended ${r.status}.`);
+			rows.push({ path: 'pool', threads, simulations: r.simulations, wall_s: r.pointsWall_s });
+			origLog(`  pool   ${threads} thread(s): ${r.simulations} simulations in ${r.pointsWall_s.toFixed(2)} s`);
+		}
+		if (poolOnly) continue;
+		// Queue path: the worker's threads are loaded before startSweepRuntime resolves.
+		{
+			console.log = quiet; // runtime and worker chatter
+			await startSweepRuntime({ inProcessWorker: true, threads });
+			const t0 = performance.now();
+			const sweep = await createSweep(program.id, null, request);
+			for (;;) {
+				await sweep.reload();
+				if (sweep.chunks_done >= sweep.chunk_count || sweep.status === 'failed' || sweep.status === 'cancelled') break;
+				await new Promise((r) => setTimeout(r, 20));
+			}
+			const wall_s = (performance.now() - t0) / 1000;
+			// Let finalisation and the front time series finish before stopping, for a clean shutdown.
+			for (let i = 0; i < 600 && !['done', 'failed', 'cancelled'].includes(sweep.status); i++) {
+				await new Promise((r) => setTimeout(r, 50));
+				await sweep.reload();
+			}
+			await stopSweepRuntime();
+			console.log = origLog;
+			if (sweep.status === 'failed') throw new Error(`The queue run failed: ${sweep.failure_reason}`);
+			rows.push({ path: 'queue', threads, simulations: sweep.simulation_count, wall_s });
+			origLog(`  queue  ${threads} thread(s): ${sweep.simulation_count} simulations in ${wall_s.toFixed(2)} s`);
+		}
+	}
+
+	const scenarios = REFERENCE_SWEEP_AXES.ambient_K.length * REFERENCE_SWEEP_AXES.stateOfHealth.length;
+	origLog('');
+	origLog(`Sweep throughput — reference sweep: ${gridPoints} grid points (10 lead times × 8 set-points × 3 ambients × 2 states of health) + ${scenarios} baselines, ${os.cpus().length} CPU cores`);
+	origLog('  path   threads   wall [s]   simulations/s   speed-up vs 1 thread');
+	for (const r of rows) {
+		const one = rows.find((q) => q.path === r.path && q.threads === 1);
+		const speedup = one ? (one.wall_s / r.wall_s).toFixed(2) + '×' : '–';
+		origLog(`  ${r.path.padEnd(6)} ${String(r.threads).padStart(7)} ${r.wall_s.toFixed(2).padStart(10)} ${(r.simulations / r.wall_s).toFixed(1).padStart(15)}   ${speedup}`);
+	}
+	const best2 = rows.find((r) => r.path === (poolOnly ? 'pool' : 'queue') && r.threads === 2);
+	if (best2) origLog(`  target: reference sweep under 10 s of wall time with 2 threads — ${best2.wall_s < 10 ? 'met' : 'NOT met'} (${best2.wall_s.toFixed(2)} s, ${best2.path})`);
+	await Sweep.sequelize!.close();
+}
+
+try {
+	await main();
+} finally {
+	console.log = origLog;
+	fs.rmSync(dataDir, { recursive: true, force: true });
+}
+process.exit(0);

@@ -129,7 +129,7 @@ describe('command line', () => {
 
 	it('should print the summary and write summary.json and series.csv with --out', () => {
 		const file = join(dir, 'ok.json');
-		writeFileSync(file, run('--example').stdout);
+		writeFileSync(file, JSON.stringify(exampleScenarioFile()));
 		const out = join(dir, 'out');
 		const r = run(file, '--out', out);
 		expect(r.status).toBe(0);

@@ -20,6 +20,7 @@ import { SweepQueue } from '../queue/producer';
 import { startSweepWorker, type SweepWorkerHandle } from '../queue/worker-runtime';
 import { activeQueue, recordProgress, setActiveQueue } from './registry';
 import { collectJob, handleJobFailed, reconcileSweeps } from './service';
+import { closeSeriesPool } from './results';
 
 export interface SweepRuntime {
 	target: RedisTarget;
@@ -115,6 +116,7 @@ async function start(opts: SweepRuntimeOptions): Promise<SweepRuntime> {
 			clearInterval(timer);
 			if (activeQueue() === queue) setActiveQueue(null);
 			await rt.worker?.close();
+			await closeSeriesPool();
 			await queue.close();
 			await privateServer?.stop();
 		}

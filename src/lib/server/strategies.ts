@@ -7,6 +7,7 @@
 import { Op } from 'sequelize';
 import { sequelize } from './db/index';
 import { Strategy, StrategyEvent, User, type StrategyState } from './db/models/index';
+import { notifyStrategyActivity } from './mail/strategy-notifications';
 
 export const STATE_LABEL: Record<StrategyState, string> = {
 	proposed: 'Proposed',
@@ -75,10 +76,13 @@ export async function changeState(strategy: Strategy, to: StrategyState, userId:
 		await strategy.update({ state: to }, { transaction });
 		await StrategyEvent.create({ strategy_id: strategy.id, user_id: userId, kind: 'state', from_state: from, to_state: to, body: note }, { transaction });
 	});
+	void notifyStrategyActivity(); // mail, off the request's outcome: never throws, catches up on its own
 }
 
 export async function addComment(strategy: Strategy, userId: string, body: string) {
-	return StrategyEvent.create({ strategy_id: strategy.id, user_id: userId, kind: 'comment', from_state: null, to_state: null, body });
+	const event = await StrategyEvent.create({ strategy_id: strategy.id, user_id: userId, kind: 'comment', from_state: null, to_state: null, body });
+	void notifyStrategyActivity(); // mail, off the request's outcome: never throws, catches up on its own
+	return event;
 }
 
 export async function thread(strategyId: number) {

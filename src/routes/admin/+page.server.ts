@@ -3,6 +3,18 @@ import type { Actions, PageServerLoad } from './$types';
 import { Membership, Program, User } from '$lib/server/db/models/index';
 import { requireAdmin } from '$lib/server/auth/guard';
 import { createInvitation, createUser, emailProblem, newId, normaliseEmail, setActive } from '$lib/server/auth/users';
+import { sendInvitationMail } from '$lib/server/mail/invitation';
+
+/** Queue the invitation e-mail; the link stays on the page either way. */
+async function mailInvitation(userId: string, email: string, link: string, invitedBy: string): Promise<string> {
+	try {
+		await sendInvitationMail(userId, link, invitedBy);
+		return `An invitation e-mail to ${email} is queued (see Outbox); the link below works too.`;
+	} catch (e) {
+		console.error('[paretherm mail] could not queue an invitation', (e as Error).message);
+		return `The invitation e-mail to ${email} could not be queued; send the link below yourself.`;
+	}
+}
 
 export const load: PageServerLoad = async ({ locals }) => {
 	requireAdmin(locals);
@@ -27,7 +39,7 @@ export const load: PageServerLoad = async ({ locals }) => {
 
 export const actions: Actions = {
 	create: async ({ locals, request, url }) => {
-		requireAdmin(locals);
+		const admin = requireAdmin(locals);
 		const form = await request.formData();
 		const name = String(form.get('name') ?? '').trim();
 		const email = normaliseEmail(String(form.get('email') ?? ''));
@@ -49,7 +61,9 @@ export const actions: Actions = {
 		}
 		const user = await createUser({ name, email, isAdmin });
 		const token = await createInvitation(user.id);
-		return { action: 'create', created: { email, password: null, link: `${url.origin}/invite/${token}` } };
+		const link = `${url.origin}/invite/${token}`;
+		const done = await mailInvitation(user.id, email, link, admin.name);
+		return { action: 'create', done, created: { email, password: null, link } };
 	},
 	setActive: async ({ locals, request }) => {
 		const admin = requireAdmin(locals);
@@ -64,11 +78,13 @@ export const actions: Actions = {
 		return { action: 'setActive', done: `${user.name} is now ${active ? 'active' : 'deactivated; their sessions have ended'}.` };
 	},
 	invite: async ({ locals, request, url }) => {
-		requireAdmin(locals);
+		const admin = requireAdmin(locals);
 		const form = await request.formData();
 		const user = await User.findByPk(String(form.get('userId') ?? ''));
 		if (!user) return fail(404, { action: 'invite', message: 'That person no longer exists; reload the page.' });
 		const token = await createInvitation(user.id);
-		return { action: 'invite', created: { email: user.email, password: null, link: `${url.origin}/invite/${token}` } };
+		const link = `${url.origin}/invite/${token}`;
+		const done = await mailInvitation(user.id, user.email, link, admin.name);
+		return { action: 'invite', done, created: { email: user.email, password: null, link } };
 	}
 };

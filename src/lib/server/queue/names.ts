@@ -38,6 +38,10 @@ export function cancelledKey(sweepId: number, queueToken: string): string {
 	return `${QUEUE_PREFIX}:cancelled:sweep-${sweepId}-${queueToken}`;
 }
 
-/** Attempts per job before the sweep is marked failed; retries back off exponentially from 2 s. */
+/**
+ * Attempts per job before the sweep is marked failed; retries back off exponentially from 2 s
+ * (2 s, then 4 s), long enough to ride out a worker restart. PARETHERM_JOB_BACKOFF_MS shortens it
+ * for tests.
+ */
 export const JOB_ATTEMPTS = 3;
-export const JOB_BACKOFF_DELAY_MS = 2_000;
+export const JOB_BACKOFF_DELAY_MS = Number(process.env.PARETHERM_JOB_BACKOFF_MS) > 0 ? Number(process.env.PARETHERM_JOB_BACKOFF_MS) : 2_000;

@@ -23,7 +23,7 @@ interface Run {
 }
 
 function runService(): Run {
-	const env = { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_WORKER_THREADS: '1', PARETHERM_JOB_LOCK_MS: '3000', PARETHERM_STALLED_CHECK_MS: '1000', PARETHERM_RECONCILE_MS: '1000' };
+	const env: NodeJS.ProcessEnv = { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_WORKER_THREADS: '1', PARETHERM_JOB_LOCK_MS: '3000', PARETHERM_STALLED_CHECK_MS: '1000', PARETHERM_RECONCILE_MS: '1000' };
 	delete env.REDIS_URL; // the private redis-server path, as for a newcomer's `npm start`
 	delete env.PARETHERM_IN_PROCESS_WORKER;
 	// node with tsx's loader, not the tsx CLI: the CLI runs the script in a child process, and

@@ -3,6 +3,7 @@
  * result persistence) and the mail outbox. Started once from `hooks.server.ts` `init`.
  * Set PARETHERM_NO_RUNTIME=1 to serve pages without them (used by some tests).
  */
+import { startSweepRuntime } from './sweeps/runtime';
 import { startMailDispatcher } from './mail/index';
 
 let started: Promise<void> | null = null;
@@ -11,7 +12,7 @@ export function startRuntime(): Promise<void> {
 	if (process.env.PARETHERM_NO_RUNTIME === '1') return Promise.resolve();
 	started ??= (async () => {
 		startMailDispatcher(); // first: mail works even when the sweep runtime cannot start
-		// Filled in as the sweep runtime and the outbox land.
+		await startSweepRuntime();
 	})();
 	return started;
 }

@@ -1,9 +1,13 @@
 import { Lucia, TimeSpan } from 'lucia';
 import { SequelizeAdapter } from './adapter';
 
-/** Cookies are Secure in production; `PARETHERM_INSECURE_COOKIE=1` allows plain-HTTP demos on a LAN. */
-const secureCookie =
-	process.env.NODE_ENV === 'production' && process.env.PARETHERM_INSECURE_COOKIE !== '1';
+/**
+ * Session cookies are Secure whenever the app is served over HTTPS (ORIGIN https://…), and in any
+ * production run without an ORIGIN. A plain-HTTP ORIGIN (the local demo on http://localhost) gets
+ * no Secure flag, because clients other than browsers would then drop the cookie.
+ */
+const origin = process.env.ORIGIN?.trim();
+const secureCookie = origin ? origin.startsWith('https:') : process.env.NODE_ENV === 'production';
 
 export const lucia = new Lucia(new SequelizeAdapter(), {
 	sessionExpiresIn: new TimeSpan(7, 'd'),

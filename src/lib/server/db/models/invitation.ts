@@ -16,5 +16,5 @@ Invitation.init(
 		expires_at: { type: DataTypes.BIGINT, allowNull: false },
 		used_at: { type: DataTypes.BIGINT, allowNull: true }
 	},
-	{ sequelize, tableName: 'invitations', underscored: true, timestamps: true, updatedAt: false }
+	{ sequelize, tableName: 'invitations', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
 );

@@ -20,5 +20,5 @@ Membership.init(
 		role: { type: DataTypes.STRING, allowNull: false },
 		digest_subscribed: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false }
 	},
-	{ sequelize, tableName: 'memberships', underscored: true, timestamps: true }
+	{ sequelize, tableName: 'memberships', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' }
 );

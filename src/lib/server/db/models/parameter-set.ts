@@ -31,5 +31,5 @@ ParameterSet.init(
 		data: { type: DataTypes.TEXT, allowNull: false },
 		created_by: { type: DataTypes.STRING, allowNull: true }
 	},
-	{ sequelize, tableName: 'parameter_sets', underscored: true, timestamps: true, updatedAt: false }
+	{ sequelize, tableName: 'parameter_sets', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
 );

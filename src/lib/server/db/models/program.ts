@@ -15,5 +15,5 @@ Program.init(
 		name: { type: DataTypes.STRING, allowNull: false, unique: true },
 		description: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' }
 	},
-	{ sequelize, tableName: 'programs', underscored: true, timestamps: true }
+	{ sequelize, tableName: 'programs', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' }
 );

@@ -32,7 +32,7 @@ Strategy.init(
 		figures: { type: DataTypes.TEXT, allowNull: false },
 		created_by: { type: DataTypes.STRING, allowNull: false }
 	},
-	{ sequelize, tableName: 'strategies', underscored: true, timestamps: true }
+	{ sequelize, tableName: 'strategies', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' }
 );
 
 /** A comment or a state change in a strategy's thread. */
@@ -57,5 +57,5 @@ StrategyEvent.init(
 		to_state: { type: DataTypes.STRING, allowNull: true },
 		body: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' }
 	},
-	{ sequelize, tableName: 'strategy_events', underscored: true, timestamps: true, updatedAt: false }
+	{ sequelize, tableName: 'strategy_events', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
 );

@@ -23,5 +23,5 @@ SweepChunk.init(
 		attempt: { type: DataTypes.INTEGER, allowNull: false },
 		elapsed_ms: { type: DataTypes.INTEGER, allowNull: false }
 	},
-	{ sequelize, tableName: 'sweep_chunks', underscored: true, timestamps: true, updatedAt: false }
+	{ sequelize, tableName: 'sweep_chunks', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
 );

@@ -55,5 +55,5 @@ SweepPoint.init(
 		summary: { type: DataTypes.TEXT, allowNull: false },
 		compute_ms: { type: DataTypes.REAL, allowNull: false }
 	},
-	{ sequelize, tableName: 'sweep_points', underscored: true, timestamps: true, updatedAt: false }
+	{ sequelize, tableName: 'sweep_points', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
 );

@@ -41,5 +41,5 @@ SweepScenario.init(
 		series_status: { type: DataTypes.STRING, allowNull: false, defaultValue: 'pending' },
 		note: { type: DataTypes.TEXT, allowNull: true }
 	},
-	{ sequelize, tableName: 'sweep_scenarios', underscored: true, timestamps: true, updatedAt: false }
+	{ sequelize, tableName: 'sweep_scenarios', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
 );

@@ -21,5 +21,5 @@ SweepSeries.init(
 		series_interval_s: { type: DataTypes.REAL, allowNull: false, field: 'series_interval_s' },
 		data: { type: DataTypes.BLOB, allowNull: false }
 	},
-	{ sequelize, tableName: 'sweep_series', underscored: true, timestamps: true, updatedAt: false }
+	{ sequelize, tableName: 'sweep_series', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
 );

@@ -55,5 +55,5 @@ Sweep.init(
 		started_at: { type: DataTypes.DATE, allowNull: true },
 		finished_at: { type: DataTypes.DATE, allowNull: true }
 	},
-	{ sequelize, tableName: 'sweeps', underscored: true, timestamps: true }
+	{ sequelize, tableName: 'sweeps', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' }
 );

@@ -21,5 +21,5 @@ User.init(
 		is_admin: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
 		active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true }
 	},
-	{ sequelize, tableName: 'users', underscored: true, timestamps: true }
+	{ sequelize, tableName: 'users', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' }
 );

@@ -83,7 +83,21 @@ async function start(opts: SweepRuntimeOptions): Promise<SweepRuntime> {
 	const { target, privateServer } = await resolveRedis({ dataDir: dataDir(), log });
 	if (!privateServer) log(`sweep queue on ${describeTarget(target)}`);
 	const queue = new SweepQueue(target);
-	await queue.ready();
+	const wait_ms = Number(process.env.PARETHERM_REDIS_WAIT_MS) || 20_000;
+	const reached = await Promise.race([
+		queue.ready().then(() => true),
+		new Promise<false>((r) => setTimeout(() => r(false), wait_ms).unref())
+	]);
+	if (!reached) {
+		await queue.close().catch(() => {});
+		await privateServer?.stop();
+		throw new Error(
+			`Cannot reach the sweep queue's Redis at ${describeTarget(target)} within ${wait_ms / 1000} s. ` +
+				(privateServer
+					? `See ${privateServer.logFile}.`
+					: 'Check REDIS_URL (host, port, password) and that the server is running, or unset REDIS_URL to let Paretherm run its own redis-server.')
+		);
+	}
 
 	// Events may arrive in any order and more than once; every handler below is idempotent.
 	const safely = (what: string, p: Promise<unknown>) => p.catch((e) => log(`${what}: ${(e as Error).message}`));

@@ -545,9 +545,21 @@ export async function collectJob(queue: SweepQueue, jobId: string): Promise<Pers
 	if (outcome === 'stored' && job.name === JOB_SWEEP_CHUNK) {
 		const sweepId = (job.data as ChunkJobData).sweepId;
 		const sweep = await Sweep.findByPk(sweepId, { attributes: ['id', 'chunks_done', 'chunk_count'] });
-		if (sweep && sweep.chunks_done >= sweep.chunk_count) await finalizeSweep(sweepId);
+		if (sweep && sweep.chunks_done >= sweep.chunk_count) await finalizeOrFail(sweepId);
 	}
 	return outcome;
+}
+
+/**
+ * Finalise; if that throws (a bug or corrupt data, not a passing condition), fail the sweep with
+ * the reason instead of retrying it on every reconciliation forever.
+ */
+async function finalizeOrFail(sweepId: number): Promise<void> {
+	try {
+		await finalizeSweep(sweepId);
+	} catch (e) {
+		await failSweep(sweepId, `All simulations finished, but the results could not be evaluated: ${(e as Error).message}`);
+	}
 }
 
 /** A job failed: if it has no attempts left, the sweep fails with its reason (chunk) or loses its stored series (series). */
@@ -634,7 +646,7 @@ export async function reconcileSweeps(queue: SweepQueue): Promise<ReconcileRepor
 			}
 		}
 		const fresh = await Sweep.findByPk(sweep.id, { attributes: ['id', 'status', 'chunks_done', 'chunk_count'] });
-		if (fresh && (fresh.status === 'queued' || fresh.status === 'running') && fresh.chunks_done >= fresh.chunk_count) await finalizeSweep(sweep.id);
+		if (fresh && (fresh.status === 'queued' || fresh.status === 'running') && fresh.chunks_done >= fresh.chunk_count) await finalizeOrFail(sweep.id);
 	}
 	return report;
 }

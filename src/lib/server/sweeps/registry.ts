@@ -6,16 +6,18 @@
 import type { JobProgress } from '../queue/jobs';
 import type { SweepQueue } from '../queue/producer';
 
-let queue: SweepQueue | null = null;
-const inFlight = new Map<string, JobProgress>();
+// On globalThis so that `vite dev` re-evaluating this module does not forget the running queue.
+const state = ((globalThis as typeof globalThis & { __parethermSweepRegistry?: { queue: SweepQueue | null; inFlight: Map<string, JobProgress> } })
+	.__parethermSweepRegistry ??= { queue: null, inFlight: new Map() });
+const inFlight = state.inFlight;
 
 export function setActiveQueue(q: SweepQueue | null): void {
-	queue = q;
+	state.queue = q;
 	if (!q) inFlight.clear();
 }
 
 export function activeQueue(): SweepQueue | null {
-	return queue;
+	return state.queue;
 }
 
 export function recordProgress(jobId: string, p: JobProgress): void {

@@ -40,7 +40,14 @@ export interface SweepRuntimeOptions {
 
 const log = (m: string) => console.log(`[paretherm] ${m}`);
 
-let current: Promise<SweepRuntime> | null = null;
+// Kept on globalThis: in `vite dev` server modules are re-evaluated after edits, and a second
+// runtime would start a second redis-server on the same files.
+const holder = globalThis as typeof globalThis & { __parethermSweepRuntime?: Promise<SweepRuntime> | null };
+let current: Promise<SweepRuntime> | null = holder.__parethermSweepRuntime ?? null;
+function setCurrent(p: Promise<SweepRuntime> | null): void {
+	current = p;
+	holder.__parethermSweepRuntime = p;
+}
 
 export function inProcessWorkerWanted(env: NodeJS.ProcessEnv = process.env): boolean {
 	const flag = env.PARETHERM_IN_PROCESS_WORKER?.trim();
@@ -51,11 +58,14 @@ export function inProcessWorkerWanted(env: NodeJS.ProcessEnv = process.env): boo
 
 /** Start the sweep runtime once per process (later calls return the same runtime). */
 export function startSweepRuntime(opts: SweepRuntimeOptions = {}): Promise<SweepRuntime> {
-	current ??= start(opts).catch((e) => {
-		current = null;
-		throw e;
-	});
-	return current;
+	if (!current)
+		setCurrent(
+			start(opts).catch((e) => {
+				setCurrent(null);
+				throw e;
+			})
+		);
+	return current!;
 }
 
 /** The started runtime, or null. */
@@ -65,7 +75,7 @@ export async function sweepRuntime(): Promise<SweepRuntime | null> {
 
 export async function stopSweepRuntime(): Promise<void> {
 	const rt = await sweepRuntime();
-	current = null;
+	setCurrent(null);
 	await rt?.stop();
 }
 

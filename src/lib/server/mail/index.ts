@@ -20,14 +20,17 @@ export interface MailDispatcher {
 	stop(): void;
 }
 
-let current: MailDispatcher | null = null;
+// Kept on globalThis so a vite dev reload of this module does not start a second dispatcher
+// (two would send the same due row twice).
+const slot = globalThis as typeof globalThis & { __parethermMail?: MailDispatcher | null };
 
 export function mailDispatcher(): MailDispatcher | null {
-	return current;
+	return slot.__parethermMail ?? null;
 }
 
 export function startMailDispatcher(opts: { transport?: MailTransport; interval_ms?: number } = {}): MailDispatcher {
-	if (current) return current;
+	const running = slot.__parethermMail;
+	if (running) return running;
 	const cfg = mailConfig(); // throws with a clear message on a malformed SMTP_URL
 	const transport = opts.transport ?? transportFromConfig(cfg);
 	log(cfg.smtpUrl ? `sending through ${describeSmtp(cfg.smtpUrl)} as ${cfg.from}` : 'SMTP_URL is unset: messages go to the local outbox (Admin → Outbox)');
@@ -69,7 +72,7 @@ export function startMailDispatcher(opts: { transport?: MailTransport; interval_
 	});
 	const timer = setInterval(() => void tick(), opts.interval_ms ?? cfg.interval_ms);
 	timer.unref();
-	current = {
+	const dispatcher: MailDispatcher = {
 		transport,
 		tick,
 		stop() {
@@ -77,13 +80,14 @@ export function startMailDispatcher(opts: { transport?: MailTransport; interval_
 			if (soon) clearTimeout(soon);
 			setKick(null);
 			transport.close();
-			current = null;
+			slot.__parethermMail = null;
 		}
 	};
+	slot.__parethermMail = dispatcher;
 	void tick();
-	return current;
+	return dispatcher;
 }
 
 export function stopMailDispatcher(): void {
-	current?.stop();
+	slot.__parethermMail?.stop();
 }

@@ -1,0 +1,130 @@
+/**
+ * The whole path a team walks, in headless chromium against the built app with its real sweep
+ * runtime (private redis-server, in-process worker): an engineer creates a scenario, queues a small
+ * sweep, watches it reach 100 %, opens the recommended point and promotes it; an architect
+ * comments and endorses it; the manager sees the decision. Each main page is saved as a
+ * screenshot in docs/screenshots for reviewers.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import fs from 'node:fs';
+import path from 'node:path';
+import type { BrowserContext, Page } from 'playwright-core';
+import { DEMO, DEMO_PASSWORD, startApp, type RunningApp } from '../helpers/app';
+import { launchBrowser, SCREENSHOT_DIR } from '../helpers/browser';
+
+let app: RunningApp;
+let browser: BrowserContext;
+let page: Page;
+const consoleErrors: string[] = [];
+
+beforeAll(async () => {
+	app = await startApp();
+	browser = await launchBrowser();
+	page = await browser.newPage();
+	page.on('console', (m) => m.type() === 'error' && consoleErrors.push(`${page.url()}: ${m.text()}`));
+	page.on('pageerror', (e) => consoleErrors.push(`${page.url()}: ${e.message}`));
+	fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
+}, 180_000);
+afterAll(async () => {
+	await browser?.close();
+	await app?.stop();
+});
+
+async function shot(name: string) {
+	await page.waitForTimeout(600); // let charts finish their first draw
+	await page.screenshot({ path: path.join(SCREENSHOT_DIR, `${name}.png`), fullPage: true });
+}
+
+async function signInAs(email: string) {
+	await page.goto(`${app.url}/login`);
+	await page.getByLabel('E-mail').fill(email);
+	await page.getByLabel('Password').fill(DEMO_PASSWORD);
+	await page.getByRole('button', { name: 'Sign in' }).click();
+	await page.waitForURL(/\/programs\/\d+$/);
+}
+
+async function signOut() {
+	await page.getByRole('button', { name: 'Sign out' }).click();
+	await page.waitForURL(/\/login$/);
+}
+
+describe('from scenario to endorsed strategy', () => {
+	let strategyUrl = '';
+
+	it('should let an engineer create a scenario, run a sweep and promote the knee point', async () => {
+		await signInAs(DEMO.engineer);
+		const programUrl = page.url();
+		await shot('01-engineer-overview');
+
+		await page.goto(`${programUrl}/inputs`);
+		await page.getByLabel('Name', { exact: true }).fill('Browser test: depot C at −15 °C');
+		await page.getByLabel('Ambient temperature').fill('-15');
+		await page.getByLabel('Drive duration').fill('20');
+		await page.getByRole('button', { name: 'Create scenario' }).click();
+		await page.waitForURL(/\/inputs\/\d+$/);
+		await expect(page.locator('h1').textContent()).resolves.toContain('Browser test: depot C');
+		await expect(page.getByText('−15.0 °C').or(page.getByText('-15.0 °C')).first().isVisible()).resolves.toBe(true);
+		await shot('02-scenario-page');
+
+		await page.goto(`${programUrl}/sweeps/new`);
+		await page.getByLabel('Base scenario').selectOption({ label: 'Browser test: depot C at −15 °C (v1)' });
+		await page.getByLabel('Demo LFP prismatic 105 Ah').uncheck();
+		await page.getByLabel('Ambient temperatures').fill('-15');
+		await page.getByLabel('States of health').fill('100');
+		await page.getByLabel('Arrival states of charge').fill('20');
+		await page.getByLabel('Heater lead times before arrival').fill('0, 10, 20');
+		await page.getByLabel('Coolant set-points').fill('15, 25, 35');
+		await expect(page.getByTestId('grid-size').textContent()).resolves.toBe('9');
+		await shot('03-sweep-builder');
+		await page.getByRole('button', { name: 'Queue sweep' }).click();
+		await page.waitForURL(/\/sweeps\/\d+$/);
+
+		// Progress is polled from the JSON API; a reload mid-way keeps showing it.
+		await page.reload();
+		await page.getByTestId('knee').waitFor({ timeout: 120_000 });
+		await expect(page.locator('[data-status]').first().getAttribute('data-status')).resolves.toBe('done');
+		await shot('04-sweep-page');
+
+		await page.getByRole('link', { name: 'Open the knee point' }).click();
+		await page.waitForURL(/\/points\/\d+$/);
+		await page.getByText('Cell current (A)').or(page.locator('canvas')).first().waitFor();
+		await shot('05-point-traces');
+		await page.getByLabel('Rationale').fill('Knee of the front: most of the time saving for a modest heater energy.');
+		await page.getByRole('button', { name: 'Promote to strategy' }).click();
+		await page.waitForURL(/\/strategies\/\d+$/);
+		strategyUrl = page.url();
+		await expect(page.getByTestId('strategy-state').textContent()).resolves.toBe('Proposed');
+		await signOut();
+	});
+
+	it('should let the architect comment and endorse', async () => {
+		await signInAs(DEMO.architect);
+		await expect(page.getByTestId('role-focus').textContent()).resolves.toContain('awaiting your decision');
+		await shot('06-architect-overview');
+		await page.goto(strategyUrl);
+		await page.getByLabel('Add a comment (plain text)').fill('Checked against the cold-soak cell tests <script>alert(1)</script> — agreed.');
+		await page.getByRole('button', { name: 'Post comment' }).click();
+		await page.getByText('Checked against the cold-soak cell tests').waitFor();
+		// Comments are rendered as text, never as markup.
+		await expect(page.getByTestId('thread-body').last().textContent()).resolves.toContain('<script>alert(1)</script>');
+		await page.getByRole('button', { name: 'Endorse' }).click();
+		await page.getByText('Strategy is now endorsed.').waitFor();
+		await expect(page.getByTestId('strategy-state').textContent()).resolves.toBe('Endorsed');
+		await shot('07-strategy-endorsed');
+		await signOut();
+	});
+
+	it('should show the manager the decision', async () => {
+		await signInAs(DEMO.manager);
+		await expect(page.getByTestId('decision-state').first().textContent()).resolves.toBe('Endorsed');
+		await shot('08-manager-overview');
+		await page.goto(page.url() + '/calibration');
+		await page.getByTestId('calibration-table').waitFor();
+		await shot('09-calibration-table');
+		await signOut();
+	});
+
+	it('should raise no console error on any page visited', () => {
+		expect(consoleErrors).toEqual([]);
+	});
+});

@@ -29,8 +29,8 @@ export function mailDispatcher(): MailDispatcher | null {
 }
 
 export function startMailDispatcher(opts: { transport?: MailTransport; interval_ms?: number } = {}): MailDispatcher {
-	const running = slot.__parethermMail;
-	if (running) return running;
+	const existing = slot.__parethermMail;
+	if (existing) return existing;
 	const cfg = mailConfig(); // throws with a clear message on a malformed SMTP_URL
 	const transport = opts.transport ?? transportFromConfig(cfg);
 	log(cfg.smtpUrl ? `sending through ${describeSmtp(cfg.smtpUrl)} as ${cfg.from}` : 'SMTP_URL is unset: messages go to the local outbox (Admin → Outbox)');

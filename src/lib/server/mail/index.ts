@@ -3,6 +3,7 @@
  * tick catches up on events (strategy events after the cursor, finished sweeps without a
  * digest), writes the daily summaries when due, then sends what is due through the transport.
  */
+import { ensureDb } from '../db/index';
 import { mailConfig, describeSmtp } from './config';
 import { dispatchDue, log, setKick } from './outbox';
 import { catchUpSweepDigests } from './sweep-digest';
@@ -53,6 +54,7 @@ export function startMailDispatcher(opts: { transport?: MailTransport; interval_
 			do {
 				again = false;
 				const at = now ?? new Date();
+				await step('database', () => ensureDb());
 				await step('strategy notifications', () => processStrategyEvents());
 				await step('sweep digests', () => catchUpSweepDigests(at));
 				await step('daily summaries', async () => {

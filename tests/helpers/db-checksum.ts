@@ -23,3 +23,13 @@ export async function databaseChecksum(dataDir: string, skip: string[] = []): Pr
 		db.close();
 	}
 }
+
+/** Runs one read-only query against the app's database (tests look up ids the UI would show). */
+export async function queryDb<T = Record<string, unknown>>(dataDir: string, sql: string, params: unknown[] = []): Promise<T[]> {
+	const db = new sqlite3.Database(path.join(dataDir, 'paretherm.sqlite'), sqlite3.OPEN_READONLY);
+	try {
+		return await new Promise<T[]>((resolve, reject) => db.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows as T[]))));
+	} finally {
+		db.close();
+	}
+}

@@ -17,7 +17,11 @@ export function listRoutes(): RouteFile[] {
 		for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
 			const full = path.join(dir, entry.name);
 			if (entry.isDirectory()) walk(full);
-			else if (entry.name === '+page.svelte' || entry.name === '+server.ts') {
+			else if (
+				entry.name === '+server.ts' ||
+				entry.name === '+page.svelte' ||
+				(entry.name === '+page.server.ts' && !fs.existsSync(path.join(dir, '+page.svelte')))
+			) {
 				const rel = '/' + path.relative(base, dir).split(path.sep).filter((s) => !/^\(.*\)$/.test(s)).join('/');
 				const id = rel === '/' ? '/' : rel.replace(/\/$/, '');
 				if (entry.name === '+server.ts') {

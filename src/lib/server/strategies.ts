@@ -48,7 +48,8 @@ export function cleanText(raw: unknown, what: string, max: number, required = tr
 	return text;
 }
 
-export async function changeState(strategy: Strategy, to: StrategyState, userId: string, note: string, can: { edit: boolean; decide: boolean }) {
+/** Throws StrategyError (409 impossible move, 403 not this role's move); checked before anything else. */
+export function assertMoveAllowed(strategy: Strategy, to: StrategyState, can: { edit: boolean; decide: boolean }) {
 	const move = TRANSITIONS.find((t) => t.from === strategy.state && t.to === to);
 	if (!move)
 		throw new StrategyError(`A ${STATE_LABEL[strategy.state].toLowerCase()} strategy cannot become ${STATE_LABEL[to].toLowerCase()}.`, 409, 'state');
@@ -58,6 +59,10 @@ export async function changeState(strategy: Strategy, to: StrategyState, userId:
 			403,
 			'state'
 		);
+}
+
+export async function changeState(strategy: Strategy, to: StrategyState, userId: string, note: string, can: { edit: boolean; decide: boolean }) {
+	assertMoveAllowed(strategy, to, can);
 	await sequelize.transaction(async (transaction) => {
 		const from = strategy.state;
 		if (to === 'endorsed') {

@@ -21,9 +21,24 @@ export function databaseFile(): string {
 
 fs.mkdirSync(dataDir(), { recursive: true });
 
+/**
+ * Sequelize's SQLite dialect opens a separate connection for each transaction and sets no busy
+ * timeout on it, so concurrent writers would fail at once with SQLITE_BUSY instead of waiting.
+ * Every connection we hand it therefore waits up to 5 s for the write lock.
+ */
+class WaitingDatabase extends sqlite3.Database {
+	constructor(filename: string, mode: number, callback: (err: Error | null) => void) {
+		super(filename, mode, (err) => {
+			if (!err) this.configure('busyTimeout', 5000);
+			callback(err);
+		});
+	}
+}
+const dialectModule = { ...sqlite3, Database: WaitingDatabase };
+
 export const sequelize = new Sequelize({
 	dialect: 'sqlite',
-	dialectModule: sqlite3,
+	dialectModule,
 	storage: databaseFile(),
 	logging: false,
 	// SQLite has one writer; a single pooled connection keeps transactions serialised.

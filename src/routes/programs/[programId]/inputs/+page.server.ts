@@ -68,7 +68,8 @@ export const actions: Actions = {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
 		const form = await request.formData();
 		const raw = String(form.get('inputId') ?? '');
-		const src = /^\d{1,10}$/.test(raw) ? await getInput(program.id, Number(raw)) : null;
+		if (!/^\d{1,10}$/.test(raw)) return fail(400, { action: 'duplicate', field: 'inputId', message: 'Choose the input to duplicate.' });
+		const src = await getInput(program.id, Number(raw));
 		if (!src || !isKind(src.kind)) return fail(404, { action: 'duplicate', field: null, message: 'That input does not exist in this program; reload the page.' });
 		try {
 			const row = await createInput(program.id, src.kind, `${src.name} (copy)`, JSON.parse(src.data), user.id);

@@ -3,7 +3,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { roleCan } from '$lib/server/auth/roles';
 import { Strategy, User, STRATEGY_STATES, type StrategyState } from '$lib/server/db/models/index';
-import { addComment, changeState, cleanText, MAX_COMMENT_CHARS, STATE_LABEL, StrategyError, thread, TRANSITIONS } from '$lib/server/strategies';
+import { addComment, assertMoveAllowed, changeState, cleanText, MAX_COMMENT_CHARS, STATE_LABEL, StrategyError, thread, TRANSITIONS } from '$lib/server/strategies';
 
 async function strategyOf(programId: number, raw: string) {
 	const s = await Strategy.findOne({ where: { id: parseId(raw, 'strategy'), program_id: programId } });
@@ -61,6 +61,7 @@ export const actions: Actions = {
 		const to = String(form.get('to') ?? '');
 		if (!(STRATEGY_STATES as readonly string[]).includes(to)) return fail(400, { field: 'to', message: `Unknown state “${to.slice(0, 30)}”.` });
 		try {
+			assertMoveAllowed(s, to as StrategyState, capabilities(role));
 			const note = cleanText(form.get('note'), 'note', MAX_COMMENT_CHARS, false);
 			await changeState(s, to as StrategyState, user.id, note, capabilities(role));
 			return { done: `Strategy is now ${STATE_LABEL[to as StrategyState].toLowerCase()}.` };

@@ -1,0 +1,24 @@
+/**
+ * CSV export of stored upload columns and check series.
+ *
+ * Numbers are written with JavaScript's shortest round-trip representation
+ * (`String(x)`, ECMA-262 Number::toString), so reading the file back gives
+ * the identical doubles; the headers are the canonical SI names the parser
+ * reads without a unit choice. Re-uploading an export therefore yields the
+ * same columns bit for bit (tested).
+ */
+import { CANONICAL_COLUMNS, type UploadKind } from './parse-upload';
+
+/** CSV text of named columns in the given order (columns absent from `columns` are skipped). */
+export function columnsToCsv(order: readonly string[], columns: Record<string, readonly number[] | null | undefined>): string {
+	const names = order.filter((n) => Array.isArray(columns[n]));
+	const cols = names.map((n) => columns[n] as readonly number[]);
+	const rows = cols.length ? cols[0].length : 0;
+	const out: string[] = [names.join(',')];
+	for (let r = 0; r < rows; r++) out.push(cols.map((c) => String(c[r])).join(','));
+	return out.join('\n') + '\n';
+}
+
+export function uploadToCsv(kind: UploadKind, columns: Record<string, readonly number[]>): string {
+	return columnsToCsv(CANONICAL_COLUMNS[kind], columns);
+}

@@ -12,3 +12,5 @@ export { SweepSeries } from './sweep-series';
 export { Strategy, StrategyEvent, STRATEGY_STATES, type StrategyState } from './strategy';
 export { MailOutbox, MailMark, MAIL_STATUSES, type MailStatus, type MailKind } from './mail-outbox';
 export { NotificationSetting, NotificationItem, STRATEGY_MODES, type StrategyMode } from './notification';
+export { Upload } from './upload';
+export { ModelCheck, ModelCheckEvent } from './model-check';

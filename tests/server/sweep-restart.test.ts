@@ -72,7 +72,7 @@ describe('sweep restart after SIGKILL', () => {
 			'the first run to store part of the sweep',
 			async () => {
 				const p = lastProgress(first.out);
-				return p && p.done >= 6 ? p : null;
+				return p && p.done >= 4 ? p : null;
 			},
 			90_000,
 			5

@@ -83,6 +83,24 @@ describe('private redis-server', () => {
 		expect(second.pid).not.toBe(orphanPid);
 	}, 30_000);
 
+	it('should share the server of a live owner process instead of starting a second one', async () => {
+		const dir = tempDir();
+		const owner = new PrivateRedis({ dir, log: () => {} });
+		servers.push(owner);
+		const target = await owner.start();
+		// Pretend another live process (our parent) owns it, as when two web processes share a folder.
+		const ownerFile = path.join(dir, 'owner.json');
+		fs.writeFileSync(ownerFile, JSON.stringify({ ...JSON.parse(fs.readFileSync(ownerFile, 'utf8')), pid: process.ppid }));
+		const logs: string[] = [];
+		const second = new PrivateRedis({ dir, log: (m) => logs.push(m) });
+		expect(await second.start()).toEqual(target);
+		expect(second.shared).toBe(true);
+		expect(second.pid).toBeUndefined();
+		expect(logs).toEqual([`using the private redis-server of Paretherm process ${process.ppid} at unix:${path.join(dir, 'redis.sock')}`]);
+		await second.stop();
+		expect(alive(owner.pid)).toBe(true); // not the second one's to stop
+	}, 30_000);
+
 	describe('error handling', () => {
 		it('should say what to install when redis-server is missing', () => {
 			const saved = process.env.REDIS_SERVER_BIN;

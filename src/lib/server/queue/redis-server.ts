@@ -7,9 +7,11 @@
  * path would be too long for the kernel's 108-byte limit), keeps an append-only file under
  * `<data>/redis` so queued sweeps survive a restart, and is restarted with back-off if it dies.
  *
- * A web process killed with SIGKILL cannot take its child with it, so the child writes a pid file;
- * the next start stops such an orphan (SIGTERM: Redis flushes its AOF and exits) before starting
- * its own, rather than letting two servers share one AOF.
+ * One server per data folder: `owner.json` names the Paretherm process that supervises it. A
+ * second process on the same folder while the owner lives connects to the owner's server. A web
+ * process killed with SIGKILL cannot take its child with it, so the child writes a pid file; the
+ * next start stops such an orphan (SIGTERM: Redis flushes its AOF and exits) before starting its
+ * own, rather than letting two servers share one socket and AOF.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
@@ -161,8 +163,34 @@ export class PrivateRedis {
 		return this.child?.pid;
 	}
 
+	get ownerFile(): string {
+		return path.join(this.dir, 'owner.json');
+	}
+
+	/** True when another live Paretherm process owns the server and this one only connects to it. */
+	get shared(): boolean {
+		return this.sharedWith !== null;
+	}
+	private sharedWith: number | null = null;
+
 	async start(): Promise<RedisTarget> {
 		fs.mkdirSync(this.dir, { recursive: true, mode: 0o700 });
+		// One redis-server per data folder. A second Paretherm process on the same folder (a second
+		// web process, a script) uses the owner's server instead of starting another one on the
+		// same socket and append-only file.
+		const owner = this.readOwner();
+		if (owner && owner.pid !== process.pid && isAlive(owner.pid)) {
+			for (let i = 0; i < 30; i++) {
+				if (await ping(owner.target)) {
+					this.sharedWith = owner.pid;
+					this.target = owner.target;
+					this.log(`using the private redis-server of Paretherm process ${owner.pid} at ${describeTarget(owner.target)}`);
+					return owner.target;
+				}
+				await sleep(100);
+			}
+			this.log(`Paretherm process ${owner.pid} owns ${this.dir} but its redis-server does not answer; taking over`);
+		}
 		await this.stopOrphan();
 		const socketPath = path.join(this.dir, 'redis.sock');
 		// sockaddr_un holds 108 bytes including the terminator; deep data folders fall back to TCP.
@@ -170,15 +198,27 @@ export class PrivateRedis {
 			Buffer.byteLength(socketPath) < 100
 				? { kind: 'socket', path: socketPath }
 				: { kind: 'tcp', host: '127.0.0.1', port: await freeLoopbackPort() };
+		fs.writeFileSync(this.ownerFile, JSON.stringify({ pid: process.pid, target: this.target }));
 		process.on('exit', this.onProcessExit);
 		await this.spawnAndWait();
 		return this.target;
 	}
 
+	private readOwner(): { pid: number; target: RedisTarget } | null {
+		try {
+			const o = JSON.parse(fs.readFileSync(this.ownerFile, 'utf8'));
+			return Number.isInteger(o?.pid) && o?.target?.kind ? o : null;
+		} catch {
+			return null;
+		}
+	}
+
 	/** SIGTERM the child (Redis fsyncs the AOF on SIGTERM) and wait for it to exit. */
 	async stop(): Promise<void> {
 		this.stopping = true;
+		if (this.sharedWith !== null) return; // not ours to stop
 		process.off('exit', this.onProcessExit);
+		if (this.readOwner()?.pid === process.pid) fs.rmSync(this.ownerFile, { force: true });
 		const child = this.child;
 		if (!child || child.exitCode !== null || child.signalCode !== null) return;
 		const exited = new Promise<void>((r) => child.once('exit', () => r()));

@@ -1,8 +1,15 @@
 /** `npm run seed`: loads the invented demo program (idempotent). */
 import { seedDemo, DEMO_PASSWORD, DEMO_PEOPLE } from '../src/lib/server/demo/seed';
 import { sequelize } from '../src/lib/server/db/index';
+import { seedDemoSweep } from '../src/lib/server/sweeps/demo';
 
-const { programId } = await seedDemo();
+const { programId, userIds } = await seedDemo();
+// The finished demo sweep takes several seconds; test fixtures that do not need it skip it.
+if (process.env.PARETHERM_SEED_SWEEP !== '0') {
+	const t0 = performance.now();
+	const sweepId = await seedDemoSweep(programId, userIds.engineer);
+	console.log(`Demo sweep ${sweepId} finished (${((performance.now() - t0) / 1000).toFixed(1)} s).`);
+}
 console.log(`Demo program ${programId} ready. Sign in with any of these (password “${DEMO_PASSWORD}”):`);
 for (const p of DEMO_PEOPLE) console.log(`  ${p.role.padEnd(9)} ${p.email}`);
 await sequelize.close();

@@ -29,7 +29,7 @@ export function tempDataDir(prefix = 'paretherm-test-'): string {
 export function seed(dataDir: string, script = 'scripts/seed.ts', extraEnv: Record<string, string> = {}) {
 	execFileSync(path.join(ROOT, 'node_modules/.bin/tsx'), [script], {
 		cwd: ROOT,
-		env: { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_BCRYPT_COST: '4', ...extraEnv },
+		env: { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_BCRYPT_COST: '4', PARETHERM_SEED_SWEEP: '0', ...extraEnv },
 		stdio: 'pipe'
 	});
 }

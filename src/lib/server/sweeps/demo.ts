@@ -12,8 +12,8 @@ import { runSweepInline } from './inline';
 export const DEMO_SWEEP_NAME = 'Cold-morning depot stop: pre-conditioning lead time × coolant set-point (demo)';
 
 /**
- * 2 ambients × 2 states of health × 4 lead times × 3 set-points = 48 grid points + 4 baselines on
- * the seeded cold-morning scenario (a few seconds on two cores). `scenarioId` must name a
+ * 2 cells × 2 ambients × 2 states of health × 5 lead times × 5 set-points = 200 grid points + 8
+ * baselines on the seeded cold-morning scenario (several seconds on two cores). `scenarioId` must name a
  * scenario parameter set of the program (the seed's 'cold-morning-depot').
  */
 export async function seedDemoSweep(programId: number, userId: string | null, scenarioId = 'cold-morning-depot'): Promise<number> {
@@ -26,13 +26,13 @@ export async function seedDemoSweep(programId: number, userId: string | null, sc
 					name: DEMO_SWEEP_NAME,
 					scenarioId,
 					definition: {
-						cellIds: [demoCells[0].id],
+						cellIds: demoCells.map((c) => c.id),
 						packIds: [demoPack.id],
 						ambients_K: [-20, -10].map(celsiusToKelvin),
 						statesOfHealth: [1, 0.85],
 						arrivalSocs: [0.2],
-						leadTimes_s: [0, 600, 1200, 1800],
-						setpoints_K: [15, 25, 35].map(celsiusToKelvin)
+						leadTimes_s: [0, 600, 1200, 1800, 2700],
+						setpoints_K: [15, 20, 25, 30, 35].map(celsiusToKelvin)
 					},
 					fastestWithinEnergy_Wh: 1500
 				});

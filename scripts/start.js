@@ -9,6 +9,9 @@ if (!fs.existsSync(new URL('../build/index.js', import.meta.url))) {
 }
 process.env.PORT ??= '3000';
 process.env.NODE_ENV ??= 'production';
+// Uploads are refused above 5 MB with a clear message (src/lib/uploads); the server must accept a
+// little more than that, or adapter-node's default 512 kB body limit answers 413 first.
+process.env.BODY_SIZE_LIMIT ??= '8M';
 // Form actions compare the request's Origin with this; set ORIGIN to the public URL behind a proxy.
 process.env.ORIGIN ??= `http://localhost:${process.env.PORT}`;
 console.log(`Paretherm: open ${process.env.ORIGIN}`);

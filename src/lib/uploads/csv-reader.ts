@@ -56,14 +56,19 @@ function startsWith(bytes: Uint8Array, prefix: number[]): boolean {
 	return bytes.length >= prefix.length && prefix.every((b, i) => bytes[i] === b);
 }
 
+/** Refuses a file over the size limit (called before reading an upload into memory, and by decodeText). */
+export function checkUploadSize(size: number): void {
+	if (size > MAX_UPLOAD_BYTES)
+		throw new UploadError(
+			`The file is ${formatBytes(size)}; the limit is ${formatBytes(MAX_UPLOAD_BYTES)}. Thin the log (one row per second is plenty for a charge) or split it into several files.`
+		);
+}
+
 /** Decodes the upload as text or says why it is not a CSV file. */
 export function decodeText(bytes: Uint8Array): { text: string; notes: string[] } {
 	const notes: string[] = [];
 	if (bytes.length === 0) throw new UploadError('The file is empty; choose the CSV file that holds the data.');
-	if (bytes.length > MAX_UPLOAD_BYTES)
-		throw new UploadError(
-			`The file is ${formatBytes(bytes.length)}; the limit is ${formatBytes(MAX_UPLOAD_BYTES)}. Thin the log (one row per second is plenty for a charge) or split it into several files.`
-		);
+	checkUploadSize(bytes.length);
 	for (const m of MAGIC) {
 		if (startsWith(bytes, m.bytes))
 			throw new UploadError(`This is ${m.what}, not a CSV file. Open it in its program and save or export it as CSV (comma-separated values, UTF-8).`);

@@ -8,3 +8,4 @@ export { default as OcpChart } from './OcpChart.svelte';
 export * from './palette';
 export * from './types';
 export * as chartData from './chart-data';
+export { default as CheckOverlayChart } from './CheckOverlayChart.svelte';

@@ -44,6 +44,16 @@ const RULES: Record<string, Rule> = {
 	'GET /admin/outbox/[messageId]/raw': 'admin',
 	'GET /programs/[programId]': 'member',
 	'GET /programs/[programId]/calibration': 'member',
+	'GET /programs/[programId]/checks': 'member',
+	'POST /programs/[programId]/checks?/upload': 'edit',
+	'POST /programs/[programId]/checks?/run': 'edit',
+	'GET /programs/[programId]/checks/[checkId]': 'member',
+	'POST /programs/[programId]/checks/[checkId]?/comment': 'comment',
+	'GET /programs/[programId]/checks/[checkId]/export': 'member',
+	'GET /programs/[programId]/checks/uploads/[uploadId]': 'member',
+	'POST /programs/[programId]/checks/uploads/[uploadId]?/useInScenario': 'edit',
+	'POST /programs/[programId]/checks/uploads/[uploadId]?/useInCell': 'edit',
+	'GET /programs/[programId]/checks/uploads/[uploadId]/export': 'member',
 	'GET /programs/[programId]/inputs': 'member',
 	'POST /programs/[programId]/inputs?/import': 'edit',
 	'POST /programs/[programId]/inputs?/createScenario': 'edit',
@@ -116,7 +126,7 @@ function refusedStatuses(rule: Rule, who: Who, method: string, key: string): num
 
 let app: RunningApp;
 const clients = {} as Record<Who, Client>;
-const ids = { programId: 0, sweepId: 0, pointId: 0, strategyId: 0, inputId: 0, messageId: 0 };
+const ids = { programId: 0, sweepId: 0, pointId: 0, strategyId: 0, inputId: 0, messageId: 0, uploadId: 0, checkId: 0 };
 
 beforeAll(async () => {
 	app = await startApp();
@@ -155,6 +165,16 @@ beforeAll(async () => {
 	ids.strategyId = Number(/strategies\/(\d+)/.exec(promoted.headers.get('location') ?? '')![1]);
 	ids.inputId = (await queryDb<{ id: number }>(app.dataDir, "SELECT id FROM parameter_sets WHERE kind = 'scenario' ORDER BY id LIMIT 1"))[0].id;
 	ids.messageId = (await queryDb<{ id: number }>(app.dataDir, 'SELECT id FROM mail_outbox ORDER BY id LIMIT 1'))[0]?.id ?? 1;
+	// An upload (a small measured log) and a model check of it to address.
+	const log = new FormData();
+	log.set('kind', 'measured-log');
+	log.set('name', 'Matrix log');
+	log.set('file', new Blob(['time_s,current_A,voltage_V,temp_C\n0,0,3.6,20\n10,30,3.7,20\n20,30,3.71,20\n']), 'matrix.csv');
+	const uploaded = await clients.engineer.request(`/programs/${ids.programId}/checks?/upload`, { method: 'POST', headers: { accept: 'text/html' }, body: log });
+	ids.uploadId = Number(/uploads\/(\d+)/.exec(uploaded.headers.get('location') ?? '')![1]);
+	const cellId = (await queryDb<{ id: number }>(app.dataDir, "SELECT id FROM parameter_sets WHERE kind = 'cell' ORDER BY id LIMIT 1"))[0].id;
+	const checked = await clients.engineer.form(`/programs/${ids.programId}/checks?/run`, { uploadId: String(ids.uploadId), cellInputId: String(cellId), initialSoc_pct: '30' });
+	ids.checkId = Number(/checks\/(\d+)/.exec(checked.headers.get('location') ?? '')![1]);
 }, 240_000);
 afterAll(async () => {
 	await app?.stop();
@@ -168,6 +188,8 @@ function concrete(id: string): string {
 		.replace('[strategyId]', String(ids.strategyId))
 		.replace('[inputId]', String(ids.inputId))
 		.replace('[messageId]', String(ids.messageId))
+		.replace('[uploadId]', String(ids.uploadId))
+		.replace('[checkId]', String(ids.checkId))
 		.replace('[token]', 'abcdefghijklmnopqrstuvwxyz');
 }
 
@@ -229,5 +251,8 @@ describe('authorisation matrix', () => {
 		expect((await c.get(`/programs/${other}/strategies/${ids.strategyId}`)).status).toBe(404);
 		expect((await c.get(`/programs/${other}/inputs/${ids.inputId}`)).status).toBe(404);
 		expect((await c.get(`/programs/${other}/inputs/${ids.inputId}/export`)).status).toBe(404);
+		expect((await c.get(`/programs/${other}/checks/uploads/${ids.uploadId}`)).status).toBe(404);
+		expect((await c.get(`/programs/${other}/checks/uploads/${ids.uploadId}/export`)).status).toBe(404);
+		expect((await c.get(`/programs/${other}/checks/${ids.checkId}/export`)).status).toBe(404);
 	});
 });

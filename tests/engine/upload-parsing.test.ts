@@ -203,7 +203,10 @@ describe('upload parsing', () => {
 		});
 
 		it('should refuse a speed trace without valid vehicle parameters and a drive longer than a day', () => {
-			expect(refusal('time_s,speed_kmh\n0,0\n10,30\n', { kind: 'drive-profile' }).message).toMatch(/road-load model needs the vehicle: mass_kg is missing/);
+			expect(refusal('time_s,speed_kmh\n0,0\n10,30\n', { kind: 'drive-profile' }).message).toMatch(/road-load model needs the vehicle: give the vehicle mass \(kg\)/);
+			const low = refusal('time_s,speed_kmh\n0,0\n10,30\n', { kind: 'drive-profile', vehicle: { ...DEMO_VAN_ROAD_LOAD, drivetrainEfficiency: 0.1 } });
+			expect(low.message).toMatch(/drivetrain efficiency must be at least 30 %/);
+			expect(low.field).toBe('vehicle_drivetrainEfficiency_pct');
 			expect(refusal('time_h,power_kW\n0,10\n25,10\n', { kind: 'drive-profile' }).message).toMatch(/lasts 25 h; a drive is at most 24 h/);
 		});
 

@@ -26,7 +26,7 @@ let programId = 0;
 function upload(c: Client, fields: Record<string, string>, file: { name: string; bytes: Uint8Array | string }) {
 	const body = new FormData();
 	for (const [k, v] of Object.entries(fields)) body.set(k, v);
-	body.set('file', new Blob([file.bytes]), file.name);
+	body.set('file', new Blob([typeof file.bytes === 'string' ? file.bytes : Buffer.from(file.bytes)]), file.name);
 	return c.request(`/programs/${programId}/checks?/upload`, { method: 'POST', headers: { accept: 'text/html' }, body });
 }
 

@@ -13,6 +13,9 @@ import { replayCurrent, DEFAULT_SURFACE_CONDUCTANCE_W_per_K } from '../engine/re
 import { checkStatistics, type CheckStatistics } from '../engine/model-check';
 import { cellWindow } from '../engine/cell-window';
 import { columnsToCsv } from '../uploads/export';
+import { citesCheck } from '../uploads/check-helpers';
+
+export { citesCheck, chartIndices } from '../uploads/check-helpers';
 
 export const CHECK_ENCODING = 'json+gzip';
 export { MAX_COMMENT_CHARS };
@@ -213,11 +216,6 @@ export async function checkThread(checkId: number) {
 	return events.map((e) => ({ id: e.id, author: e.user_id ? (name.get(e.user_id) ?? 'Former member') : 'Paretherm', body: e.body, at: e.created_at.toISOString() }));
 }
 
-/** "check #12", "Check #12" — not "check #123" for 12. */
-export function citesCheck(text: string, checkId: number): boolean {
-	return new RegExp(`\\bcheck\\s*#${checkId}(?![0-9])`, 'i').test(text);
-}
-
 /** Strategies of the program whose rationale or thread cites the check. */
 export async function strategiesCiting(programId: number, checkId: number) {
 	const like = `%#${checkId}%`;
@@ -233,32 +231,4 @@ export async function strategiesCiting(programId: number, checkId: number) {
 	return strategies
 		.filter((s) => viaThread.has(s.id) || citesCheck(s.rationale, checkId))
 		.map((s) => ({ id: s.id, title: s.title, state: s.state }));
-}
-
-/**
- * Indices to draw: at most `maxPoints`, one per bucket — the sample with the largest voltage error,
- * so spikes stay visible when a long log is thinned for the page (the CSV has every sample).
- */
-export function chartIndices(measured: readonly number[], simulated: readonly number[], maxPoints = 4000): number[] {
-	const n = measured.length;
-	if (n <= maxPoints) return Array.from({ length: n }, (_, i) => i);
-	const out: number[] = [];
-	const size = n / maxPoints;
-	for (let b = 0; b < maxPoints; b++) {
-		const from = Math.floor(b * size);
-		const to = Math.min(n, Math.floor((b + 1) * size));
-		let best = from;
-		let worst = -1;
-		for (let i = from; i < to; i++) {
-			const e = Math.abs(simulated[i] - measured[i]);
-			if (e > worst) {
-				worst = e;
-				best = i;
-			}
-		}
-		out.push(best);
-	}
-	if (out[out.length - 1] !== n - 1) out.push(n - 1);
-	if (out[0] !== 0) out.unshift(0);
-	return out;
 }

@@ -338,6 +338,24 @@ function checkTime(time_s: number[], lines: number[], notes: string[]): { time_s
 	return { time_s, offset_s: 0 };
 }
 
+/** Road-load parameter → words in messages, and the upload form field that holds it. */
+const VEHICLE_WORDS: Record<string, string> = {
+	mass_kg: 'vehicle mass (kg)',
+	dragArea_m2: 'drag area c_d·A (m²)',
+	rollingResistance: 'rolling-resistance coefficient',
+	drivetrainEfficiency: 'drivetrain efficiency (%)',
+	regenFraction: 'share of braking recuperated (%)',
+	auxiliaryPower_W: 'auxiliary power (kW)'
+};
+const VEHICLE_FIELDS: Record<string, string> = {
+	mass_kg: 'vehicle_mass_kg',
+	dragArea_m2: 'vehicle_dragArea_m2',
+	rollingResistance: 'vehicle_rollingResistance',
+	drivetrainEfficiency: 'vehicle_drivetrainEfficiency_pct',
+	regenFraction: 'vehicle_regenFraction_pct',
+	auxiliaryPower_W: 'vehicle_auxiliaryPower_kW'
+};
+
 function driveProfile(raw: Partial<Record<Quantity, number[]>>, lines: number[], options: UploadOptions, notes: string[]) {
 	const { time_s, offset_s } = checkTime(raw.time!, lines, notes);
 	const end = time_s[time_s.length - 1];
@@ -351,9 +369,11 @@ function driveProfile(raw: Partial<Record<Quantity, number[]>>, lines: number[],
 		const parsed = vehicleRoadLoadSchema.safeParse(options.vehicle ?? {});
 		if (!parsed.success) {
 			const issue = parsed.error.issues[0];
+			const key = String(issue.path[0] ?? '');
+			const words = VEHICLE_WORDS[key] ?? key;
 			throw new UploadError(
-				`The file gives speed, so the road-load model needs the vehicle: ${issue.path.join('.')} ${issue.message === 'Required' ? 'is missing' : `— ${issue.message}`}.`,
-				`vehicle_${String(issue.path[0] ?? '')}`
+				`The file gives speed, so the road-load model needs the vehicle: ${issue.message === 'Required' ? `give the ${words}` : issue.message}.`,
+				VEHICLE_FIELDS[key] ?? 'file'
 			);
 		}
 		vehicle = parsed.data;

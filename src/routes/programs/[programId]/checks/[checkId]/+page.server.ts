@@ -30,7 +30,8 @@ export const load: PageServerLoad = async ({ locals, params }) => {
 			measuredVoltage_V: at(s.voltage_V)!,
 			simulatedVoltage_V: at(s.simulated_voltage_V)!,
 			measuredTemp_K: at(s.temp_K),
-			simulatedTemp_K: at(s.simulated_temp_K),
+			// With a prescribed (measured) temperature the simulated one is the same curve: draw it once.
+			simulatedTemp_K: JSON.parse(row.settings).thermal === 'simulated' ? at(s.simulated_temp_K) : null,
 			coolant_K: at(s.coolant_K),
 			ambient_K: at(s.ambient_K)
 		},

@@ -2,8 +2,11 @@
 import { seedDemo, DEMO_PASSWORD, DEMO_PEOPLE } from '../src/lib/server/demo/seed';
 import { sequelize } from '../src/lib/server/db/index';
 import { seedDemoSweep } from '../src/lib/server/sweeps/demo';
+import { seedDemoChecks } from '../src/lib/server/demo/seed-checks';
 
 const { programId, userIds } = await seedDemo();
+// An invented bench log, a drive profile and one model check, so the Checks page is not empty (fast).
+await seedDemoChecks(programId, { engineer: userIds.engineer, architect: userIds.architect });
 // The finished demo sweep takes several seconds; test fixtures that do not need it skip it.
 if (process.env.PARETHERM_SEED_SWEEP !== '0') {
 	const t0 = performance.now();

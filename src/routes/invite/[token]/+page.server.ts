@@ -18,8 +18,13 @@ export const actions: Actions = {
 		const inv = await findOpenInvitation(params.token);
 		if (!inv) return fail(404, { message: 'This invitation link is unknown, used or expired.' });
 		const form = await request.formData();
-		const password = String(form.get('password') ?? '');
-		const confirm = String(form.get('confirm') ?? '');
+		const rawPassword = form.get('password');
+		const rawConfirm = form.get('confirm');
+		// A file part would otherwise become the password "[object File]".
+		if ((rawPassword !== null && typeof rawPassword !== 'string') || (rawConfirm !== null && typeof rawConfirm !== 'string'))
+			return fail(400, { message: 'Type the password into the form; files are not accepted here.' });
+		const password = rawPassword ?? '';
+		const confirm = rawConfirm ?? '';
 		const problem = passwordProblem(password);
 		if (problem) return fail(400, { message: problem });
 		if (password !== confirm) return fail(400, { message: 'The two passwords differ; type the same one twice.' });

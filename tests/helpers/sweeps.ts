@@ -7,24 +7,13 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import net from 'node:net';
-import { fileURLToPath } from 'node:url';
 import { Redis } from 'ioredis';
 
-export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+import { ROOT, freePort } from './app';
+
+export { ROOT, freePort };
 export const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
 export const C = (celsius: number) => celsius + 273.15;
-
-export async function freePort(): Promise<number> {
-	return new Promise((resolve, reject) => {
-		const srv = net.createServer();
-		srv.listen(0, '127.0.0.1', () => {
-			const { port } = srv.address() as net.AddressInfo;
-			srv.close(() => resolve(port));
-		});
-		srv.on('error', reject);
-	});
-}
 
 export interface TestRedis {
 	url: string;

@@ -283,5 +283,8 @@ describe('uploads and model checks over HTTP', () => {
 		expect(await page()).toContain('No strategy cites this check yet');
 		await clients.architect.form(`/programs/${programId}/strategies/${strategyId}?/comment`, { body: `Model error at −10 °C is small, see check #${checkId}.` });
 		expect(await page()).toContain(`#${strategyId} Warm before the hub`);
+		// And the strategy's thread links the citation to the check (and only that one).
+		const thread = await (await clients.viewer.get(`/programs/${programId}/strategies/${strategyId}`)).text();
+		expect(thread).toContain(`<a class="text-current-700 underline" href="/programs/${programId}/checks/${checkId}">check #${checkId}</a>`);
 	}, 150_000);
 });

@@ -61,6 +61,13 @@ describe('upload parsing', () => {
 			expect(p.columns.voltage_V[0]).toBeCloseTo(3.6, 12);
 		});
 
+		it('should accept a log at the row limit (no call-stack overflow on 200 000 rows)', () => {
+			const rows = Array.from({ length: MAX_UPLOAD_ROWS }, (_, i) => `${i},${i % 2 ? 30 : -30},3.7`);
+			const p = parse(['time_s,current_A,voltage_V', ...rows].join('\n'), log);
+			expect(p.rowCount).toBe(MAX_UPLOAD_ROWS);
+			expect([p.meta.minCurrent_A, p.meta.maxCurrent_A]).toEqual([-30, 30]);
+		});
+
 		it('should ignore columns it does not know and list them', () => {
 			const p = parse('time_s,current_A,voltage_V,simulated_voltage_V,comment\n0,1,3.6,3.61,\n1,1,3.6,3.61,\n', log);
 			expect(Object.keys(p.columns)).toEqual(['time_s', 'current_A', 'voltage_V']);

@@ -236,7 +236,7 @@ export function parseUpload(bytes: Uint8Array, options: UploadOptions): ParsedUp
 	const data = rows.slice(headerFound ? 1 : 0);
 	const dataLines = lines.slice(headerFound ? 1 : 0);
 	if (data.length < 2) throw new UploadError(`The file has ${data.length === 0 ? 'no data rows' : 'only one data row'}; a table needs at least two rows of numbers.`);
-	const width = headerFound ? first.length : Math.max(...data.map((r) => r.length));
+	const width = headerFound ? first.length : data.reduce((w, r) => Math.max(w, r.length), 0);
 	const issues: string[] = [];
 	const raw: Partial<Record<Quantity, number[]>> = {};
 	for (const s of sources) raw[s.quantity] = new Array<number>(data.length);
@@ -399,7 +399,7 @@ function driveProfile(raw: Partial<Record<Quantity, number[]>>, lines: number[],
 			duration_s: end,
 			energy_Wh: energy_J / 3600,
 			averagePower_W: end > 0 ? energy_J / end : 0,
-			peakPower_W: Math.max(...p)
+			peakPower_W: largest(p)
 		}
 	};
 }
@@ -469,13 +469,20 @@ function measuredLog(raw: Partial<Record<Quantity, number[]>>, lines: number[], 
 			duration_s: time_s[time_s.length - 1],
 			netCharge_Ah: charge_C / 3600,
 			netEnergy_Wh: energy_J / 3600,
-			maxCurrent_A: Math.max(...I),
-			minCurrent_A: Math.min(...I),
+			maxCurrent_A: largest(I),
+			minCurrent_A: -largest(I.map((a) => -a)),
 			hasTemp: Boolean(raw.temp),
 			hasAmbient: Boolean(raw.ambient),
 			hasCoolant: Boolean(raw.coolant)
 		}
 	};
+}
+
+/** Largest value by a loop: Math.max(...values) overflows the call stack for 200 000 rows. */
+function largest(values: readonly number[]): number {
+	let m = -Infinity;
+	for (const v of values) if (v > m) m = v;
+	return m;
 }
 
 function orderColumns(kind: UploadKind, columns: Record<string, number[]>): Record<string, number[]> {

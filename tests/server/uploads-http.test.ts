@@ -248,6 +248,20 @@ describe('uploads and model checks over HTTP', () => {
 		expect(await databaseChecksum(app.dataDir)).toBe(before);
 	});
 
+	it('should take a log near the size limit, check it and draw it thinned', async () => {
+		// 180 000 rows, ≈ 4.6 MB: under the 5 MB limit, far over adapter-node's default 512 kB body limit.
+		const rows = Array.from({ length: 180_000 }, (_, i) => `${i * 0.5},${i % 4000 < 2000 ? 30 : -30},${(3.7 + 0.05 * Math.sin(i / 900)).toFixed(5)},${(20 + (i % 100) / 100).toFixed(2)}`);
+		const csv = ['time_s,current_A,voltage_V,temp_C', ...rows].join('\n');
+		expect(Buffer.byteLength(csv)).toBeGreaterThan(4_000_000);
+		expect((await upload(engineer(), { kind: 'measured-log', name: 'Long cycling log' }, { name: 'long.csv', bytes: csv })).status).toBe(303);
+		const cellId = (await queryDb<{ id: number }>(app.dataDir, "SELECT id FROM parameter_sets WHERE kind = 'cell' AND slug = 'demo-nmc-pouch' ORDER BY version LIMIT 1"))[0].id;
+		const res = await engineer().form(`/programs/${programId}/checks?/run`, { uploadId: String(await uploadId('Long cycling log')), cellInputId: String(cellId), initialSoc_pct: '50' });
+		expect(res.status, await res.clone().text()).toBe(303);
+		const page = await (await clients.viewer.get(res.headers.get('location')!)).text();
+		expect(page).toContain('Showing 4,00');
+		expect(page).toContain('of 180,000 samples');
+	});
+
 	it('should take comments on a check from commenters only', async () => {
 		const checkId = (await queryDb<{ id: number }>(app.dataDir, "SELECT id FROM model_checks WHERE title = 'Noise recovery'"))[0].id;
 		const posted = await clients.manager.form(`/programs/${programId}/checks/${checkId}?/comment`, { body: 'RMSE matches the bench noise; good enough for the cold-charge study.' });

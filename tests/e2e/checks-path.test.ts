@@ -5,44 +5,29 @@
  * way. Screenshots go to docs/screenshots for reviewers.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import fs from 'node:fs';
-import path from 'node:path';
-import type { BrowserContext, Page } from 'playwright-core';
-import { DEMO, DEMO_PASSWORD, startApp, type RunningApp } from '../helpers/app';
-import { launchBrowser, SCREENSHOT_DIR } from '../helpers/browser';
+import type { Page } from 'playwright-core';
+import { DEMO, startApp, type RunningApp } from '../helpers/app';
+import { BrowserSession } from '../helpers/browser';
 import { replayCurrent } from '../../src/lib/engine/replay';
 import { demoNmcPouch } from '../../src/lib/engine/demo';
 
 let app: RunningApp;
-let browser: BrowserContext;
+let session: BrowserSession;
 let page: Page;
-const consoleErrors: string[] = [];
 
 beforeAll(async () => {
 	app = await startApp();
-	browser = await launchBrowser();
-	page = await browser.newPage();
-	page.on('console', (m) => m.type() === 'error' && consoleErrors.push(`${page.url()}: ${m.text()}`));
-	page.on('pageerror', (e) => consoleErrors.push(`${page.url()}: ${e.message}`));
-	fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
+	session = await BrowserSession.open(app.url);
+	page = session.page;
 }, 180_000);
 afterAll(async () => {
-	await browser?.close();
+	await session?.close();
 	await app?.stop();
 });
 
-async function shot(name: string) {
-	await page.waitForTimeout(600); // let charts finish their first draw
-	await page.screenshot({ path: path.join(SCREENSHOT_DIR, `${name}.png`), fullPage: true });
-}
-
-async function signInAs(email: string) {
-	await page.goto(`${app.url}/login`);
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill(DEMO_PASSWORD);
-	await page.getByRole('button', { name: 'Sign in' }).click();
-	await page.waitForURL(/\/programs\/\d+$/);
-}
+const shot = (name: string) => session.shot(name);
+const signInAs = (email: string) => session.signInAs(email);
+const signOut = () => session.signOut();
 
 /** A 40-minute bench charge of the demo NMC cell made by the engine, with a small measurement offset (invented). */
 function benchLog(): string {
@@ -97,6 +82,6 @@ describe('uploads and model checks in the browser', () => {
 		await expect.poll(() => page.getByTestId('rmse').textContent()).toBe('3.0 mV');
 		expect(await page.getByRole('button', { name: 'Post comment' }).count()).toBe(0);
 		// The refused upload answers 400 by design (no-JavaScript form semantics); the browser logs that status, nothing else may appear.
-		expect(consoleErrors.filter((e) => !/checks\?\/upload: Failed to load resource: the server responded with a status of 400/.test(e))).toEqual([]);
+		expect(session.consoleErrors.filter((e) => !/checks\?\/upload: Failed to load resource: the server responded with a status of 400/.test(e))).toEqual([]);
 	});
 });

@@ -6,47 +6,27 @@
  * screenshot in docs/screenshots for reviewers.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import fs from 'node:fs';
-import path from 'node:path';
-import type { BrowserContext, Page } from 'playwright-core';
-import { DEMO, DEMO_PASSWORD, startApp, type RunningApp } from '../helpers/app';
-import { launchBrowser, SCREENSHOT_DIR } from '../helpers/browser';
+import type { Page } from 'playwright-core';
+import { DEMO, startApp, type RunningApp } from '../helpers/app';
+import { BrowserSession } from '../helpers/browser';
 
 let app: RunningApp;
-let browser: BrowserContext;
+let session: BrowserSession;
 let page: Page;
-const consoleErrors: string[] = [];
 
 beforeAll(async () => {
 	app = await startApp();
-	browser = await launchBrowser();
-	page = await browser.newPage();
-	page.on('console', (m) => m.type() === 'error' && consoleErrors.push(`${page.url()}: ${m.text()}`));
-	page.on('pageerror', (e) => consoleErrors.push(`${page.url()}: ${e.message}`));
-	fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
+	session = await BrowserSession.open(app.url);
+	page = session.page;
 }, 180_000);
 afterAll(async () => {
-	await browser?.close();
+	await session?.close();
 	await app?.stop();
 });
 
-async function shot(name: string) {
-	await page.waitForTimeout(600); // let charts finish their first draw
-	await page.screenshot({ path: path.join(SCREENSHOT_DIR, `${name}.png`), fullPage: true });
-}
-
-async function signInAs(email: string) {
-	await page.goto(`${app.url}/login`);
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill(DEMO_PASSWORD);
-	await page.getByRole('button', { name: 'Sign in' }).click();
-	await page.waitForURL(/\/programs\/\d+$/);
-}
-
-async function signOut() {
-	await page.getByRole('button', { name: 'Sign out' }).click();
-	await page.waitForURL(/\/login$/);
-}
+const shot = (name: string) => session.shot(name);
+const signInAs = (email: string) => session.signInAs(email);
+const signOut = () => session.signOut();
 
 describe('from scenario to endorsed strategy', () => {
 	let strategyUrl = '';
@@ -148,11 +128,11 @@ describe('from scenario to endorsed strategy', () => {
 			await signOut();
 		}
 		// A refused page is an expected 403, the only console error allowed on this tour.
-		const unexpected = consoleErrors.filter((e) => !/status of 403/.test(e));
+		const unexpected = session.consoleErrors.filter((e) => !/status of 403/.test(e));
 		expect(unexpected).toEqual([]);
 	});
 
 	it('should raise no console error on any page visited', () => {
-		expect(consoleErrors.filter((e) => !/status of 403/.test(e))).toEqual([]);
+		expect(session.consoleErrors.filter((e) => !/status of 403/.test(e))).toEqual([]);
 	});
 });

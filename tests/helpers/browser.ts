@@ -1,5 +1,5 @@
 /** Headless Debian chromium driven by playwright-core (no browser download). */
-import { chromium, type BrowserContext } from 'playwright-core';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -27,3 +27,47 @@ export async function launchBrowser(): Promise<BrowserContext> {
 }
 
 export const SCREENSHOT_DIR = path.resolve(__dirname, '../../docs/screenshots');
+
+/**
+ * One browser page against a running app, collecting console errors, with the sign-in steps and
+ * screenshots the path tests share.
+ */
+export class BrowserSession {
+	readonly consoleErrors: string[] = [];
+	private constructor(
+		readonly context: BrowserContext,
+		readonly page: Page,
+		readonly baseUrl: string
+	) {
+		page.on('console', (m) => m.type() === 'error' && this.consoleErrors.push(`${page.url()}: ${m.text()}`));
+		page.on('pageerror', (e) => this.consoleErrors.push(`${page.url()}: ${e.message}`));
+	}
+
+	static async open(baseUrl: string): Promise<BrowserSession> {
+		const context = await launchBrowser();
+		fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
+		return new BrowserSession(context, await context.newPage(), baseUrl);
+	}
+
+	async shot(name: string) {
+		await this.page.waitForTimeout(600); // let charts finish their first draw
+		await this.page.screenshot({ path: path.join(SCREENSHOT_DIR, `${name}.png`), fullPage: true });
+	}
+
+	async signInAs(email: string, password = 'demo-paretherm-2026') {
+		await this.page.goto(`${this.baseUrl}/login`);
+		await this.page.getByLabel('E-mail').fill(email);
+		await this.page.getByLabel('Password').fill(password);
+		await this.page.getByRole('button', { name: 'Sign in' }).click();
+		await this.page.waitForURL(/\/programs\/\d+$/);
+	}
+
+	async signOut() {
+		await this.page.getByRole('button', { name: 'Sign out' }).click();
+		await this.page.waitForURL(/\/login$/);
+	}
+
+	close() {
+		return this.context.close();
+	}
+}

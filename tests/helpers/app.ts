@@ -7,8 +7,10 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import net from 'node:net';
+import { fileURLToPath } from 'node:url';
 
-export const ROOT = path.resolve(__dirname, '../..');
+// import.meta.url, not __dirname: fixtures run this module under plain node + tsx (ESM), where __dirname is undefined.
+export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 export const DEMO_PASSWORD = 'demo-paretherm-2026';
 
 export async function freePort(): Promise<number> {

@@ -5,7 +5,7 @@
  * while the single writer (the web process) stores sweep results; the busy timeout makes a second
  * writer (the seed or backup command) wait instead of failing.
  */
-import { Sequelize } from 'sequelize';
+import { Sequelize, Transaction } from 'sequelize';
 import sqlite3 from 'sqlite3';
 import fs from 'node:fs';
 import path from 'node:path';
@@ -61,7 +61,12 @@ export const sequelize = new Sequelize({
 	logging: false,
 	// SQLite has one writer; a single pooled connection keeps transactions serialised.
 	pool: { max: 1, min: 0, idle: 10_000 },
-	retry: { max: 5, match: [/SQLITE_BUSY/] }
+	retry: { max: 5, match: [/SQLITE_BUSY/] },
+	// Each transaction has its own connection. A DEFERRED one that reads and then writes fails at
+	// once with SQLITE_BUSY (no busy wait, and retrying the statement cannot help) when another
+	// connection committed in between — e.g. saving an input while a sweep stores chunks answered
+	// 500. IMMEDIATE takes the write lock at BEGIN, where the busy timeout does wait.
+	transactionType: Transaction.TYPES.IMMEDIATE
 });
 
 let ready: Promise<void> | null = null;

@@ -71,7 +71,7 @@ beforeAll(async () => {
 	const [input] = await queryDb<{ data: string }>(app.dataDir, 'SELECT data FROM parameter_sets WHERE id = ?', [ids.inputId]);
 	const saved = await c.engineer.form(`/programs/${ids.programId}/inputs/${ids.inputId}?/save`, { name: X.input, json: input.data });
 	xssInputId = Number(/inputs\/(\d+)/.exec(saved.headers.get('location') ?? '')?.[1]);
-	expect(xssInputId, `save answered ${saved.status}`).toBeGreaterThan(0);
+	expect(xssInputId, `save answered ${saved.status}: ${app.log().split("\n").filter((l) => /error|Error/.test(l)).slice(0, 8).join("\n")}`).toBeGreaterThan(0);
 }, 240_000);
 
 afterAll(async () => {

@@ -253,6 +253,25 @@ describe('faults during sweeps', () => {
 		await probe.quit();
 	}, 240_000);
 
+	it('should accept edits while a sweep stores its chunks (no "database is locked")', async () => {
+		const id = await createSweep('Edits while storing');
+		const engineer = await signedIn(app, DEMO.engineer);
+		const architect = await signedIn(app, DEMO.architect);
+		const [input] = await queryDb<{ data: string }>(dataDir, 'SELECT data FROM parameter_sets WHERE id = ?', [ids.inputId]);
+		const statuses: number[] = [];
+		let whileRunning = 0;
+		for (let i = 0; i < 40 && (await sweepRow(id)).status !== 'done'; i++) {
+			whileRunning++;
+			statuses.push((await engineer.form(`/programs/${ids.programId}/inputs/${ids.inputId}?/save`, { name: `Edited while storing ${i}`, json: input.data })).status);
+			statuses.push((await architect.form(`/programs/${ids.programId}/strategies/${ids.strategyId}?/comment`, { body: `comment ${i}` })).status);
+		}
+		expect(whileRunning).toBeGreaterThan(2);
+		expect(statuses.filter((s) => s !== 303 && s !== 200)).toEqual([]);
+		await expectFinishedOnce(id);
+		finished.push(id);
+		expect(app.log()).not.toMatch(/SQLITE_BUSY|unexpected error/);
+	}, 240_000);
+
 	it('should ride out Redis frozen (SIGSTOP) for a few seconds, reads still answering', async () => {
 		const id = await createSweep('Redis frozen');
 		await waitFor('two stored chunks', async () => (await storedChunks(id)) >= 2, 120_000, 20);
@@ -306,7 +325,7 @@ describe('faults during sweeps', () => {
 	}, 300_000);
 
 	it('should write each digest once per recipient and deliver each exactly once after the mail server refused them', async () => {
-		expect(finished).toHaveLength(5);
+		expect(finished).toHaveLength(6);
 		const subscribers = 3;
 		// Every finished sweep has its digest rows, exactly one per recipient (written despite the kills).
 		const rows = await waitFor('every digest in the outbox', async () => {

@@ -2,6 +2,7 @@
 import { seedDemo, DEMO_PASSWORD, DEMO_PEOPLE } from '../src/lib/server/demo/seed';
 import { sequelize } from '../src/lib/server/db/index';
 import { seedDemoSweep } from '../src/lib/server/sweeps/demo';
+import { settleDigests } from '../src/lib/server/sweeps/service';
 import { seedDemoChecks } from '../src/lib/server/demo/seed-checks';
 
 const { programId, userIds } = await seedDemo();
@@ -15,4 +16,5 @@ if (process.env.PARETHERM_SEED_SWEEP !== '0') {
 }
 console.log(`Demo program ${programId} ready. Sign in with any of these (password “${DEMO_PASSWORD}”):`);
 for (const p of DEMO_PEOPLE) console.log(`  ${p.role.padEnd(9)} ${p.email}`);
+await settleDigests(); // the demo sweep's digest is written after its last commit
 await sequelize.close();

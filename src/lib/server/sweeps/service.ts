@@ -453,14 +453,23 @@ async function completeIfSeriesDone(sweepId: number, transaction: Transaction): 
 	}
 }
 
+const pendingDigests = new Set<Promise<void>>();
+
 /** Mail digest (src/lib/server/mail), written after the status change; a mail problem never fails the sweep. */
 function digestAfter(sweepId: number): void {
 	const later = (e: unknown) => log(`digest of sweep ${sweepId} not written now (${(e as Error)?.message}); the mail dispatcher retries`);
 	try {
-		notifySweepFinished(sweepId).catch(later);
+		const p = notifySweepFinished(sweepId).catch(later);
+		pendingDigests.add(p);
+		void p.finally(() => pendingDigests.delete(p));
 	} catch (e) {
 		later(e);
 	}
+}
+
+/** Resolves when digests started so far are written; a short-lived process awaits it before closing the database. */
+export async function settleDigests(): Promise<void> {
+	while (pendingDigests.size) await Promise.all([...pendingDigests]);
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -42,14 +42,18 @@ function timeRuns(inp: SimulationInput, runs: number): { median_ms: number; p90_
 	return { median_ms: median(t), p90_ms: t[Math.floor(0.9 * (t.length - 1))] };
 }
 
-function retained_kB(make: () => unknown): number {
+/** Heap held by one result: keep 20 of them alive and divide, after a warm-up, so one-time
+ * caches and collector noise do not dominate (a single result measured alone came out negative). */
+function retained_kB(make: () => unknown, count = 20): number {
+	make();
 	collect();
 	const before = process.memoryUsage().heapUsed;
-	const keep = make();
+	const keep: unknown[] = [];
+	for (let i = 0; i < count; i++) keep.push(make());
 	collect();
 	const after = process.memoryUsage().heapUsed;
-	void keep;
-	return (after - before) / 1024;
+	if (keep.length !== count) throw new Error('unreachable');
+	return (after - before) / 1024 / count;
 }
 
 const base = parseScenarioFile(JSON.parse(JSON.stringify(exampleScenarioFile())));

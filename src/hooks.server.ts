@@ -1,4 +1,4 @@
-import { error, redirect, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
+import { error, isHttpError, redirect, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { ensureDb } from '$lib/server/db/index';
 import { lucia } from '$lib/server/auth/lucia';
 import { startRuntime } from '$lib/server/runtime';
@@ -30,7 +30,7 @@ export const handle: Handle = async ({ event, resolve }) => {
 		const next = event.url.pathname + event.url.search;
 		redirect(303, `/login?next=${encodeURIComponent(next)}`);
 	}
-	if (event.request.method === 'POST') answerUnreadableForms(event.request);
+	if (event.request.method === 'POST') answerUnreadableForms(event.request, event.url);
 	const response = await resolve(event);
 	response.headers.set('X-Frame-Options', 'DENY');
 	response.headers.set('X-Content-Type-Options', 'nosniff');
@@ -51,12 +51,17 @@ export const handleError: HandleServerError = ({ error, status }) => {
  * turn that into a 500. Reading the form here instead answers the client's mistake as a 4xx that
  * says what to send.
  */
-function answerUnreadableForms(request: Request): void {
+function answerUnreadableForms(request: Request, url: URL): void {
 	const read = request.formData.bind(request);
 	request.formData = async () => {
 		try {
-			return await read();
+			const form = await read();
+			// A file part read as text would be stored as "[object File]"; only upload forms take files.
+			if (!takesFiles(url) && [...form.values()].some((v) => typeof v !== 'string'))
+				error(400, 'This form takes no files; send its fields as text.');
+			return form;
 		} catch (e) {
+			if (isHttpError(e)) throw e;
 			if (!(e instanceof TypeError)) throw e;
 			const type = (request.headers.get('content-type') ?? '').split(';')[0].trim().toLowerCase();
 			if (type !== 'multipart/form-data' && type !== 'application/x-www-form-urlencoded')
@@ -64,6 +69,11 @@ function answerUnreadableForms(request: Request): void {
 			error(400, 'The form data could not be read (malformed body); send the form again.');
 		}
 	};
+}
+
+/** The form actions that accept file parts: parameter import and CSV uploads. */
+function takesFiles(url: URL): boolean {
+	return (/\/inputs$/.test(url.pathname) && url.search.startsWith('?/import')) || (/\/checks$/.test(url.pathname) && url.search.startsWith('?/upload'));
 }
 
 /** Pages (not JSON routes, which answer 401 themselves) send anonymous visitors to sign in. */

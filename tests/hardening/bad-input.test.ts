@@ -502,7 +502,7 @@ async function fuzz(key: string, url: string | ((r: BadRequest) => string), as: 
 		{ seed: seedFor(key), numRuns: runs, endOnFailure: true, interruptAfterTimeLimit: 120_000, markInterruptAsFailure: true }
 	);
 	const problems: string[] = [];
-	if (result.failed) problems.push(`${key} (seed ${seedFor(key)}, PARETHERM_FUZZ_SEED=${SEED}): ${String(result.errorInstance ?? result.error).slice(0, 2000)}`);
+	if (result.failed) problems.push(`${key} (seed ${seedFor(key)}, PARETHERM_FUZZ_SEED=${SEED}): ${String(result.errorInstance).slice(0, 2000)}`);
 	if (checkDb && (await databaseChecksum(app.dataDir)) !== before) problems.push(`${key}: the table checksum changed during the run`);
 	return { problems, sent };
 }

@@ -98,7 +98,7 @@ describe('cross-program ids', () => {
 			const calls: { method: string; action: string | null }[] =
 				r.kind === 'page' ? [{ method: 'GET', action: null }, ...r.actions.map((a) => ({ method: 'POST', action: a }))] : r.methods.map((m) => ({ method: m, action: null }));
 			// Which object comes from the other program: each one alone, and all of them.
-			const variants: Record<string, 0 | 1>[] = [...objectParams.map((p) => Object.fromEntries(objectParams.map((q) => [q, q === p ? 1 : 0]))), Object.fromEntries(objectParams.map((q) => [q, 1]))];
+			const variants: Record<string, 0 | 1>[] = [...objectParams.map((p) => Object.fromEntries(objectParams.map((q) => [q, q === p ? 1 : 0])) as Record<string, 0 | 1>), Object.fromEntries(objectParams.map((q) => [q, 1])) as Record<string, 0 | 1>];
 			for (const variant of variants) {
 				for (const [who, client, programId] of [
 					['admin', admin, ids.programId],

@@ -14,8 +14,10 @@ import { celsiusToKelvin } from './units';
  * OCP fits); the electrode area is scaled to 60 Ah. Activation energies:
  * graphite diffusion 30.3 kJ/mol and kinetics 53.4 kJ/mol, NMC kinetics
  * 43.6 kJ/mol (Ecker et al., J. Electrochem. Soc. 162 (2015) A1836, values
- * from memory). Films, contact resistance, entropic tables, thermal
- * properties, ageing and the CC–CV table are demo values.
+ * from memory). Electrolyte transport: the polynomials of Nyman et al.,
+ * Electrochim. Acta 53 (2008) 6356, with demo activation energies. Films,
+ * contact resistance, entropic tables, thermal properties, ageing and the
+ * CC–CV table are demo values.
  */
 export const demoNmcPouch: CellParams = {
 	id: 'demo-nmc-pouch',
@@ -35,6 +37,8 @@ export const demoNmcPouch: CellParams = {
 		rateActivation_J_per_mol: 53400,
 		filmResistance_ohm_m2: 0.002,
 		filmActivation_J_per_mol: 35000,
+		conductivity_S_per_m: 215,
+		conductivityBruggeman: 0,
 		ocp: { kind: 'fit', fit: 'graphite' },
 		entropic: {
 			stoichiometry: [0, 0.1, 0.2, 0.35, 0.5, 0.8, 1],
@@ -53,6 +57,8 @@ export const demoNmcPouch: CellParams = {
 		rateActivation_J_per_mol: 43600,
 		filmResistance_ohm_m2: 0.0005,
 		filmActivation_J_per_mol: 30000,
+		conductivity_S_per_m: 0.18,
+		conductivityBruggeman: 0,
 		ocp: { kind: 'fit', fit: 'nmc811' },
 		entropic: {
 			stoichiometry: [0, 0.3, 0.5, 0.7, 1],
@@ -62,11 +68,12 @@ export const demoNmcPouch: CellParams = {
 	separator: { thickness_m: 12e-6, porosity: 0.47 },
 	electrolyte: {
 		concentration_mol_m3: 1000,
-		diffusivity_m2_s: 1.77e-10,
+		diffusivityModel: { kind: 'nyman2008' },
 		diffusivityActivation_J_per_mol: 17000,
-		conductivity_S_per_m: 0.95,
+		conductivityModel: { kind: 'nyman2008' },
 		conductivityActivation_J_per_mol: 17000,
 		cationTransference: 0.2594,
+		thermodynamicFactor: 1,
 		bruggeman: 1.5
 	},
 	stoichiometry: { negativeAt0Soc: 0.0279, negativeAt100Soc: 0.9014, positiveAt100Soc: 0.2661 },
@@ -84,7 +91,9 @@ export const demoNmcPouch: CellParams = {
  * LFP / graphite prismatic, 105 Ah. Graphite OCP fit of Chen et al. (2020);
  * the LFP open-circuit curve is an invented demo table with the usual flat
  * plateau near 3.42 V; LFP c_max from its theoretical capacity (170 mAh/g,
- * 3.6 g/cm³). Everything else is demo data.
+ * 3.6 g/cm³). Electrolyte transport: the correlations of Valøen & Reimers,
+ * J. Electrochem. Soc. 152 (2005) A882 (they carry temperature themselves).
+ * Everything else is demo data.
  */
 export const demoLfpPrismatic: CellParams = {
 	id: 'demo-lfp-prismatic',
@@ -104,6 +113,8 @@ export const demoLfpPrismatic: CellParams = {
 		rateActivation_J_per_mol: 53400,
 		filmResistance_ohm_m2: 0.002,
 		filmActivation_J_per_mol: 35000,
+		conductivity_S_per_m: 100,
+		conductivityBruggeman: 1.5,
 		ocp: { kind: 'fit', fit: 'graphite' },
 		entropic: {
 			stoichiometry: [0, 0.1, 0.2, 0.35, 0.5, 0.8, 1],
@@ -122,6 +133,8 @@ export const demoLfpPrismatic: CellParams = {
 		rateActivation_J_per_mol: 40000,
 		filmResistance_ohm_m2: 0,
 		filmActivation_J_per_mol: 0,
+		conductivity_S_per_m: 0.5,
+		conductivityBruggeman: 1.5,
 		ocp: {
 			kind: 'table',
 			stoichiometry: [0, 0.02, 0.05, 0.1, 0.2, 0.5, 0.8, 0.9, 0.95, 0.98, 1],
@@ -132,11 +145,12 @@ export const demoLfpPrismatic: CellParams = {
 	separator: { thickness_m: 16e-6, porosity: 0.45 },
 	electrolyte: {
 		concentration_mol_m3: 1200,
-		diffusivity_m2_s: 2e-10,
-		diffusivityActivation_J_per_mol: 17000,
-		conductivity_S_per_m: 1.0,
-		conductivityActivation_J_per_mol: 17000,
+		diffusivityModel: { kind: 'valoen-reimers2005' },
+		diffusivityActivation_J_per_mol: 0,
+		conductivityModel: { kind: 'valoen-reimers2005' },
+		conductivityActivation_J_per_mol: 0,
 		cationTransference: 0.3,
+		thermodynamicFactor: 1,
 		bruggeman: 1.5
 	},
 	stoichiometry: { negativeAt0Soc: 0.05, negativeAt100Soc: 0.85, positiveAt100Soc: 0.03 },

@@ -52,6 +52,11 @@ export class ImplicitDiffusion {
 		this.sup = new Float64Array(this.n);
 	}
 
+	/** Conductance of face i (between cells i and i+1) at factor 1. */
+	faceConductance(i: number): number {
+		return this.g0[i];
+	}
+
 	/** Total Σ cap_i·c_i (amount of substance in the domain). */
 	total(): number {
 		let s = 0;
@@ -61,8 +66,17 @@ export class ImplicitDiffusion {
 
 	/** Factor the step matrix for step dt_s and conductance factor, and solve for hom and resp. */
 	prepare(dt_s: number, factor: number): void {
+		this.solve(dt_s, this.g0, factor);
+	}
+
+	/** As prepare(), with face conductances given per face for this step (concentration-dependent transport). */
+	prepareFaces(dt_s: number, faceConductance: Float64Array): void {
+		this.solve(dt_s, faceConductance, 1);
+	}
+
+	private solve(dt_s: number, g0: Float64Array, factor: number): void {
 		const n = this.n;
-		const { cap, g0, diag, sup, hom, resp, c, source } = this;
+		const { cap, diag, sup, hom, resp, c, source } = this;
 		const invDt = 1 / dt_s;
 		// Forward sweep of the Thomas algorithm; diag holds reciprocal pivots.
 		let prevInv = 0;
@@ -148,6 +162,11 @@ export class SphericalParticle {
 		this.mid_m = mid;
 		this.h1 = mid[shells - 1] - R;
 		this.h2 = mid[shells - 2] - R;
+	}
+
+	/** Face i's area ÷ 4π over the distance between shell mid-radii, m (conductance at D = 1). */
+	faceConductance(i: number): number {
+		return this.grid.faceConductance(i);
 	}
 
 	get concentration(): Float64Array {

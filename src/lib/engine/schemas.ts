@@ -10,6 +10,7 @@ import { z } from 'zod';
 import { fmt, ZERO_CELSIUS_K } from './units';
 import { cellWindow } from './cell-window';
 import { makeOcp } from './ocp';
+import { firstBadPoint, makeTransport, type TransportModel } from './electrolyte-transport';
 
 type Show = (v: number) => string;
 
@@ -108,9 +109,90 @@ export const electrodeSchema = z.object({
 	/** Surface film (SEI/CEI) resistance per particle surface area, Ω·m². */
 	filmResistance_ohm_m2: nonNegative('film resistance', 1, (v) => `${v.toExponential(3)} Ω·m²`),
 	filmActivation_J_per_mol: activation('film resistance activation energy').default(0),
+	/** Electronic conductivity of the electrode's solid phase, S/m; absent = high enough to neglect its ohmic drop. */
+	conductivity_S_per_m: num('electrode electronic conductivity', 1e-4, 1e8, (v) => `${fmt.number(v, 4)} S/m`).optional(),
+	/** Bruggeman exponent of the solid phase: σ_eff = σ·(1 − porosity)^b (1.5 common practice, no source). */
+	conductivityBruggeman: num('electrode Bruggeman exponent', 0, 4).default(1.5),
 	ocp: ocpSpecSchema,
 	entropic: entropicTableSchema
 });
+
+const transportModelSchema = (label: string, unit: string) =>
+	z.discriminatedUnion(
+		'kind',
+		[
+			z.object({ kind: z.literal('constant') }).strict(),
+			z.object({ kind: z.literal('nyman2008') }).strict(),
+			z.object({ kind: z.literal('valoen-reimers2005') }).strict(),
+			z
+				.object({
+					kind: z.literal('power-series'),
+					terms: z
+						.array(z.object({ coefficient: num(`${label} coefficient`, -1e6, 1e6), power: num(`${label} power`, -4, 6) }).strict())
+						.min(1, `the ${label} power series needs at least one term`)
+				})
+				.strict(),
+			z
+				.object({
+					kind: z.literal('table'),
+					concentration_mol_m3: z
+						.array(num(`${label} table concentration`, 0, 10_000, (v) => `${fmt.number(v, 0)} mol/m³`))
+						.min(2, `the ${label} table needs at least two points`)
+						.refine(strictlyIncreasing, `${label} table concentrations must be strictly increasing; check the table order`),
+					value: z.array(num(`${label} table value`, Number.MIN_VALUE, 1e3, (v) => `${v.toExponential(3)} ${unit}`, 'it must be positive')).min(2)
+				})
+				.strict()
+		],
+		{ errorMap: () => ({ message: `${label} model kind must be 'constant', 'nyman2008', 'valoen-reimers2005', 'power-series' or 'table'` }) }
+	)
+		.superRefine((t, ctx) => {
+			if (t.kind === 'table' && t.value.length !== t.concentration_mol_m3.length) {
+				ctx.addIssue({ code: z.ZodIssueCode.custom, path: ['value'], message: `the ${label} table needs one value per concentration` });
+			}
+		});
+
+/** Temperatures at which a transport correlation must stay positive (−20 … 60 °C). */
+const TRANSPORT_CHECK_TEMPS_K = [-20, -10, 0, 25, 45, 60].map((c) => c + ZERO_CELSIUS_K);
+
+export const electrolyteSchema = z
+	.object({
+		concentration_mol_m3: num('electrolyte concentration', 100, 5000, (v) => `${fmt.number(v, 0)} mol/m³`),
+		/** Constant diffusivity at the reference temperature (the 'constant' model), m²/s. */
+		diffusivity_m2_s: num('electrolyte diffusivity', 1e-12, 1e-8, (v) => `${v.toExponential(3)} m²/s`).optional(),
+		diffusivityActivation_J_per_mol: activation('electrolyte diffusion activation energy'),
+		/** Constant conductivity at the reference temperature (the 'constant' model), S/m. */
+		conductivity_S_per_m: num('electrolyte conductivity', 0.01, 10, (v) => `${fmt.number(v, 4)} S/m`).optional(),
+		conductivityActivation_J_per_mol: activation('electrolyte conductivity activation energy'),
+		/** Concentration (and temperature) dependence; absent = constant. See electrolyte-transport.ts. */
+		diffusivityModel: transportModelSchema('electrolyte diffusivity', 'm²/s').optional(),
+		conductivityModel: transportModelSchema('electrolyte conductivity', 'S/m').optional(),
+		cationTransference: fraction('cation transference number', 0.05, 0.95),
+		/** 1 + d ln f±/d ln c, multiplies the concentration overpotential (1 = ideal solution). */
+		thermodynamicFactor: num('thermodynamic factor', 0.2, 10).default(1),
+		bruggeman: num('Bruggeman exponent', 1, 4).default(1.5)
+	})
+	.superRefine((e, ctx) => {
+		const check = (property: 'conductivity' | 'diffusivity', scalar: number | undefined, model: TransportModel | undefined, activation: number) => {
+			const field = property === 'conductivity' ? 'conductivity_S_per_m' : 'diffusivity_m2_s';
+			const modelField = `${property}Model`;
+			const m = model ?? { kind: 'constant' };
+			if (m.kind === 'constant' && scalar === undefined) {
+				ctx.addIssue({ code: z.ZodIssueCode.custom, path: [field], message: `give the electrolyte ${property} as ${field} or as ${modelField}` });
+				return;
+			}
+			const f = makeTransport(property, m, scalar, activation);
+			const bad = firstBadPoint(f, 0.01 * e.concentration_mol_m3, 2 * e.concentration_mol_m3, TRANSPORT_CHECK_TEMPS_K);
+			if (bad) {
+				ctx.addIssue({
+					code: z.ZodIssueCode.custom,
+					path: [m.kind === 'constant' ? field : modelField],
+					message: `the electrolyte ${property} is ${Number.isFinite(bad.value) ? fmt.number(bad.value, 4) : 'undefined'} at ${fmt.number(bad.concentration_mol_m3, 0)} mol/m³ and ${fmt.celsius(bad.temp_K)}; it must stay positive from 1 % to 200 % of the initial concentration between −20 °C and 60 °C — check the coefficients or give a table`
+				});
+			}
+		};
+		check('conductivity', e.conductivity_S_per_m, e.conductivityModel, e.conductivityActivation_J_per_mol);
+		check('diffusivity', e.diffusivity_m2_s, e.diffusivityModel, e.diffusivityActivation_J_per_mol);
+	});
 
 export const cellParamsSchema = z
 	.object({
@@ -125,15 +207,7 @@ export const cellParamsSchema = z
 			thickness_m: num('separator thickness', 1e-6, 2e-4, (v) => `${fmt.number(v * 1e6, 2)} µm`),
 			porosity: fraction('separator porosity', 0.1, 0.95)
 		}),
-		electrolyte: z.object({
-			concentration_mol_m3: num('electrolyte concentration', 100, 5000, (v) => `${fmt.number(v, 0)} mol/m³`),
-			diffusivity_m2_s: num('electrolyte diffusivity', 1e-12, 1e-8, (v) => `${v.toExponential(3)} m²/s`),
-			diffusivityActivation_J_per_mol: activation('electrolyte diffusion activation energy'),
-			conductivity_S_per_m: num('electrolyte conductivity', 0.01, 10, (v) => `${fmt.number(v, 4)} S/m`),
-			conductivityActivation_J_per_mol: activation('electrolyte conductivity activation energy'),
-			cationTransference: fraction('cation transference number', 0.05, 0.95),
-			bruggeman: num('Bruggeman exponent', 1, 4).default(1.5)
-		}),
+		electrolyte: electrolyteSchema,
 		/** Electrode stoichiometries (lithiation fractions) bounding the rated 0…100 % SOC window of a new cell. */
 		stoichiometry: z.object({
 			negativeAt0Soc: fraction('negative stoichiometry at 0 % SOC', 0, 0.5),
@@ -152,7 +226,13 @@ export const cellParamsSchema = z
 			maxVoltage_V: num('maximum cell voltage', 2, 5, fmt.volts),
 			minVoltage_V: num('minimum cell voltage', 1, 4, fmt.volts),
 			maxTemp_K: temp('maximum cell temperature', 20, 90),
-			anodePotentialMargin_V: num('anode potential margin', 0, 0.2, fmt.millivolts).default(0.01)
+			anodePotentialMargin_V: num('anode potential margin', 0, 0.2, fmt.millivolts).default(0.01),
+			/**
+			 * Lowest electrolyte salt concentration the controller lets any point of the cell reach,
+			 * mol/m³; absent = 0.1 % of the initial concentration (a modelling choice, no source). Depletion
+			 * is a limit on current, not something to compute through.
+			 */
+			minElectrolyteConcentration_mol_m3: num('minimum electrolyte concentration', 0.1, 1000, (v) => `${fmt.number(v, 3)} mol/m³`).optional()
 		}),
 		ageing: z.object({
 			/** Fraction of anode active material lost per unit of capacity fade (1 − SOH). */
@@ -381,7 +461,20 @@ export const simulationOptionsSchema = z.object({
 	/** Time step during drive and dwell, s (default 5). */
 	driveStep_s: num('drive time step', 0.1, 60, (v) => `${v} s`).optional(),
 	/** Finite-volume shells per particle (default 20). */
-	particleShells: z.number().int().min(4).max(200).optional()
+	particleShells: z.number().int().min(4).max(200).optional(),
+	/** Electrolyte finite-volume cells per region (default 20 | 10 | 20). */
+	electrolyteCells: z
+		.object({
+			negative: z.number().int().min(2).max(200),
+			separator: z.number().int().min(1).max(200),
+			positive: z.number().int().min(2).max(200)
+		})
+		.strict()
+		.optional(),
+	/** 'ideal' = infinite electrolyte transport: the single particle model (default 'full'). */
+	electrolyte: z.enum(['full', 'ideal'], { message: "electrolyte must be 'full' or 'ideal'" }).optional(),
+	/** Add the heat of mixing of the particles' concentration gradients (default false). */
+	heatOfMixing: z.boolean().optional()
 });
 
 export const simulationInputSchema = z

@@ -38,6 +38,7 @@ export type LimitName =
 	| 'max-voltage'
 	| 'max-temperature'
 	| 'anode-potential'
+	| 'electrolyte-depletion'
 	| 'target'
 	| 'protocol-current'
 	| 'none';
@@ -47,6 +48,7 @@ export const LIMIT_NAMES: readonly LimitName[] = [
 	'max-voltage',
 	'max-temperature',
 	'anode-potential',
+	'electrolyte-depletion',
 	'target',
 	'protocol-current',
 	'none'
@@ -140,6 +142,9 @@ export const CONTROL_TOLERANCE = { voltage_V: 1e-3, anode_V: 1e-3, temp_K: 0.1 }
 /** Weight turning a temperature slack into a voltage-like slack in the solver (1 K ≙ 10 mV). */
 const TEMP_SLACK_WEIGHT = 0.01;
 const SOLVER_TOL = 1e-4;
+/** Iteration caps; a cap that binds is counted and reported as a note. */
+const DRIVE_ITERATIONS = 20;
+const SOLVER_ITERATIONS = 50;
 
 /** Run one scenario. Validates the input first; throws EngineInputError naming the field. */
 export function simulate(input: SimulationInput): SimulationResult {
@@ -171,7 +176,11 @@ class Simulation {
 	private vMin = 0;
 	private vMean = 0;
 	private anodeMin = 0;
+	private ceMin = 0;
 	private tMaxPred = 0;
+	private readonly electrolyteFloor: number;
+	/** Turns a concentration slack into a voltage-like one (the floor's distance over the initial concentration, × 0.1 V). */
+	private readonly electrolyteScale: number;
 	private socPred = 0;
 	/** Current of the last evalAt since the last prepareStep (NaN = none). */
 	private evaluatedI = NaN;
@@ -204,14 +213,28 @@ class Simulation {
 	private readonly underLimit: Record<LimitName, number>;
 	private readonly violations: string[] = [];
 	private readonly notes: string[] = [];
-	private violationSeen = { voltage: false, anode: false, temp: false, stalled: false };
+	/** Worst excursion past each limit during the charge (beyond the stated tolerance), with its time. */
+	private readonly excursions: Record<'voltage' | 'anode' | 'temp', { first_s: number; worst: number; worst_s: number; atZeroCurrent: boolean } | null> = {
+		voltage: null,
+		anode: null,
+		temp: null
+	};
+	private driveIterationCapHits = 0;
+	private solverCapHits = 0;
 
 	constructor(input: SimulationInput) {
 		this.input = input;
 		const { cell, pack, scenario, options } = input;
-		const shells = options?.particleShells ?? 20;
+		const modelOptions = {
+			shells: options?.particleShells ?? 20,
+			electrolyteCells: options?.electrolyteCells,
+			electrolyte: options?.electrolyte,
+			heatOfMixing: options?.heatOfMixing
+		};
 		this.G = pack.cellGroups.length;
-		this.cells = pack.cellGroups.map(() => new CellModel(cell, scenario.stateOfHealth, shells));
+		this.cells = pack.cellGroups.map(() => new CellModel(cell, scenario.stateOfHealth, modelOptions));
+		this.electrolyteFloor = this.cells[0].electrolyteFloor_mol_m3;
+		this.electrolyteScale = cell.electrolyte.concentration_mol_m3;
 		this.share = Float64Array.from(pack.cellGroups.map((g) => g.share));
 		this.nCells = pack.seriesCount * pack.parallelCount;
 		this.groupHeat = new Float64Array(this.G);
@@ -276,8 +299,10 @@ class Simulation {
 		let vMin = Infinity;
 		let vMean = 0;
 		let anode = Infinity;
+		let ceMin = Infinity;
 		for (let g = 0; g < G; g++) {
 			const o = this.cells[g].evaluate(I);
+			if (o.minElectrolyte_mol_m3 < ceMin) ceMin = o.minElectrolyte_mol_m3;
 			if (o.voltage_V > vMax) vMax = o.voltage_V;
 			if (o.voltage_V < vMin) vMin = o.voltage_V;
 			vMean += this.share[g] * o.voltage_V;
@@ -295,7 +320,13 @@ class Simulation {
 		this.vMin = vMin;
 		this.vMean = vMean;
 		this.anodeMin = anode;
+		this.ceMin = ceMin;
 		this.tMaxPred = tMax;
+	}
+
+	/** Electrolyte slack as a voltage-like quantity (≥ 0 feasible). */
+	private electrolyteSlack(): number {
+		return (0.1 * (this.ceMin - this.electrolyteFloor)) / this.electrolyteScale;
 	}
 
 	private prepareStep(dt: number): void {
@@ -390,27 +421,35 @@ class Simulation {
 		const perCell = request_W / this.nCells;
 		let I = 0;
 		if (perCell !== 0) {
-			// Fixed point I = −p / V(I): contraction because I·dV/dI ≪ V.
+			// Fixed point I = −p / V(I): a contraction because |I·dV/dI| ≪ V; stops on the residual.
 			let v = this.vMean > 0.5 ? this.vMean : cell.limits.minVoltage_V;
-			for (let k = 0; k < 3; k++) {
-				I = -perCell / v;
+			let converged = false;
+			for (let k = 0; k < DRIVE_ITERATIONS; k++) {
+				const next = -perCell / v;
+				const moved = Math.abs(next - I);
+				I = next;
 				this.evalAt(I);
 				v = Math.max(this.vMean, 0.1);
+				if (moved <= 1e-6 * (1 + Math.abs(I))) {
+					converged = true;
+					break;
+				}
 			}
+			if (!converged) this.driveIterationCapHits++;
 		}
 		this.evalAt(I);
 		const vmin = cell.limits.minVoltage_V;
 		const vmax = cell.limits.maxVoltage_V;
 		const tmax = cell.limits.maxTemp_K;
 		const margin = cell.limits.anodePotentialMargin_V;
-		if (I < 0 && (this.vMin < vmin || this.tMaxPred > tmax)) {
-			// Derate: most negative current that keeps V ≥ V_min and T ≤ T_max.
+		if (I < 0 && (this.vMin < vmin || this.tMaxPred > tmax || this.electrolyteSlack() < 0)) {
+			// Derate: most negative current that keeps V ≥ V_min, T ≤ T_max and the electrolyte above its floor.
 			let lo = I;
 			let hi = 0;
-			for (let k = 0; k < 40 && hi - lo > 1e-6; k++) {
+			for (let k = 0; k < 60 && hi - lo > 1e-6; k++) {
 				const mid = 0.5 * (lo + hi);
 				this.evalAt(mid);
-				if (this.vMin >= vmin && this.tMaxPred <= tmax) hi = mid;
+				if (this.vMin >= vmin && this.tMaxPred <= tmax && this.electrolyteSlack() >= 0) hi = mid;
 				else lo = mid;
 			}
 			I = hi;
@@ -420,14 +459,14 @@ class Simulation {
 				this.derating_s += dt;
 				this.shortfall_J += (request_W - delivered_W) * dt;
 			}
-		} else if (I > 0 && (this.vMax > vmax || this.anodeMin < margin || this.tMaxPred > tmax)) {
+		} else if (I > 0 && (this.vMax > vmax || this.anodeMin < margin || this.tMaxPred > tmax || this.electrolyteSlack() < 0)) {
 			// Regenerative braking limited like a charge; the friction brakes take the rest.
 			let lo = 0;
 			let hi = I;
-			for (let k = 0; k < 40 && hi - lo > 1e-6; k++) {
+			for (let k = 0; k < 60 && hi - lo > 1e-6; k++) {
 				const mid = 0.5 * (lo + hi);
 				this.evalAt(mid);
-				if (this.vMax <= vmax && this.anodeMin >= margin && this.tMaxPred <= tmax) lo = mid;
+				if (this.vMax <= vmax && this.anodeMin >= margin && this.tMaxPred <= tmax && this.electrolyteSlack() >= 0) lo = mid;
 				else hi = mid;
 			}
 			I = lo;
@@ -443,7 +482,7 @@ class Simulation {
 
 	/** Normalised smallest slack (≥ 0 feasible) of the evaluated point; the constraint goes to bindWhich. */
 	private slack(useAnode: boolean): number {
-		// (constraints: charger power, anode potential, voltage, temperature)
+		// (constraints: electrolyte depletion, charger power, anode potential, voltage, temperature)
 		const lim = this.input.cell.limits;
 		// Charger power as a voltage headroom: P_avail/(n·I) − V_mean ≥ 0 ⇔ n·I·V_mean ≤ P_avail.
 		const I = this.evaluatedI;
@@ -451,6 +490,11 @@ class Simulation {
 		const sV = lim.maxVoltage_V - this.vMax;
 		const sA = useAnode ? this.anodeMin - lim.anodePotentialMargin_V : Infinity;
 		const sT = (lim.maxTemp_K - this.tMaxPred) * TEMP_SLACK_WEIGHT;
+		const sE = this.electrolyteSlack();
+		if (sE < sP && sE < sA && sE < sV && sE < sT) {
+			this.bindWhich = 'electrolyte-depletion';
+			return sE;
+		}
 		if (sP <= sA && sP <= sV && sP <= sT) {
 			this.bindWhich = 'charger-power';
 			return sP;
@@ -491,7 +535,8 @@ class Simulation {
 		let m = this.slackAt(x, useAnode);
 		let xPrev = NaN;
 		let mPrev = NaN;
-		for (let k = 0; k < 50; k++) {
+		let k = 0;
+		for (; k < SOLVER_ITERATIONS; k++) {
 			if (m >= 0) {
 				if (x > best) {
 					best = x;
@@ -521,6 +566,7 @@ class Simulation {
 			x = xn;
 			m = this.slackAt(x, useAnode);
 		}
+		if (k === SOLVER_ITERATIONS) this.solverCapHits++;
 		if (!Number.isNaN(xPrev) && x !== xPrev && m !== mPrev) {
 			const s = -(m - mPrev) / (x - xPrev);
 			if (s > 1e-9 && Number.isFinite(s)) this.slopeEst = s;
@@ -579,27 +625,10 @@ class Simulation {
 		const lim = cell.limits;
 		if (this.anodeMin < this.minAnode_V) this.minAnode_V = this.anodeMin;
 		if (this.vMax > this.maxChargeV) this.maxChargeV = this.vMax;
-		if (this.vMax > lim.maxVoltage_V + CONTROL_TOLERANCE.voltage_V && !this.violationSeen.voltage) {
-			this.violationSeen.voltage = true;
-			this.violations.push(`cell voltage reached ${fmt.volts(this.vMax)}, above the maximum ${fmt.volts(lim.maxVoltage_V)}`);
-		}
-		if (this.tMaxPred > lim.maxTemp_K + CONTROL_TOLERANCE.temp_K && !this.violationSeen.temp) {
-			this.violationSeen.temp = true;
-			this.violations.push(
-				I === 0
-					? `cell temperature ${fmt.celsius(this.tMaxPred)} is above the maximum ${fmt.celsius(lim.maxTemp_K)} even without charging current`
-					: `cell temperature reached ${fmt.celsius(this.tMaxPred)}, above the maximum ${fmt.celsius(lim.maxTemp_K)}`
-			);
-		}
 		const anodeFloor = useAnode ? lim.anodePotentialMargin_V - CONTROL_TOLERANCE.anode_V : 0;
-		if (this.anodeMin < anodeFloor && !this.violationSeen.anode) {
-			this.violationSeen.anode = true;
-			this.violations.push(
-				useAnode
-					? `anode potential fell to ${fmt.millivolts(this.anodeMin)}, below the ${fmt.millivolts(lim.anodePotentialMargin_V)} margin`
-					: `anode potential fell to ${fmt.millivolts(this.anodeMin)} vs Li/Li+ under the CC-CV reference: lithium plating likely`
-			);
-		}
+		this.excursion('voltage', this.vMax - (lim.maxVoltage_V + CONTROL_TOLERANCE.voltage_V), this.vMax, I);
+		this.excursion('temp', this.tMaxPred - (lim.maxTemp_K + CONTROL_TOLERANCE.temp_K), this.tMaxPred, I);
+		this.excursion('anode', anodeFloor - this.anodeMin, this.anodeMin, I);
 		const stepDt = dt * frac;
 		if (frac < 1) {
 			// Re-prepare a shorter last step so the state ends exactly at the target.
@@ -617,6 +646,63 @@ class Simulation {
 		return frac;
 	}
 
+	/** Track a limit's worst excursion (`over` > 0 = beyond its tolerance) with the time it happened. */
+	private excursion(which: 'voltage' | 'anode' | 'temp', over: number, value: number, I: number): void {
+		if (!(over > 0)) return;
+		const e = this.excursions[which];
+		const t = this.t_s;
+		if (!e) {
+			this.excursions[which] = { first_s: t, worst: value, worst_s: t, atZeroCurrent: I === 0 };
+			return;
+		}
+		const worse = which === 'anode' ? value < e.worst : value > e.worst;
+		if (worse) {
+			e.worst = value;
+			e.worst_s = t;
+		}
+		if (I !== 0) e.atZeroCurrent = false;
+	}
+
+	/** Violation messages: the worst value and when, and when the limit was first crossed (times from plug-in). */
+	private violationMessages(plugIn_s: number): void {
+		const lim = this.input.cell.limits;
+		const at = (t: number) => fmt.minutes(t - plugIn_s);
+		const v = this.excursions.voltage;
+		if (v) this.violations.push(`cell voltage reached ${fmt.volts(v.worst)} at ${at(v.worst_s)} after plug-in (first above the maximum ${fmt.volts(lim.maxVoltage_V)} at ${at(v.first_s)})`);
+		const t = this.excursions.temp;
+		if (t) {
+			this.violations.push(
+				t.atZeroCurrent
+					? `cell temperature is above the maximum ${fmt.celsius(lim.maxTemp_K)} even without charging current (worst ${fmt.celsius(t.worst)} at ${at(t.worst_s)} after plug-in)`
+					: `cell temperature reached ${fmt.celsius(t.worst)} at ${at(t.worst_s)} after plug-in, above the maximum ${fmt.celsius(lim.maxTemp_K)} (first crossed at ${at(t.first_s)})`
+			);
+		}
+		const a = this.excursions.anode;
+		if (a) {
+			this.violations.push(
+				this.protocol === 'plating-limited'
+					? `anode potential fell to a minimum of ${fmt.millivolts(a.worst)} at ${at(a.worst_s)} after plug-in, below the ${fmt.millivolts(lim.anodePotentialMargin_V)} margin (first crossed at ${at(a.first_s)})`
+					: `anode potential fell to a minimum of ${fmt.millivolts(a.worst)} vs Li/Li+ at ${at(a.worst_s)} after plug-in under the CC-CV reference (below 0 V from ${at(a.first_s)}): lithium plating likely`
+			);
+		}
+	}
+
+	/** Notes for every clamp and iteration cap that bound during the run. */
+	private boundNotes(): void {
+		let stoich = 0;
+		let floor = 0;
+		for (const c of this.cells) {
+			stoich += c.clamps.stoichiometry;
+			floor += c.clamps.electrolyteFloor;
+		}
+		if (stoich > 0) this.notes.push(`a particle's surface stoichiometry was held inside 0…1 in ${stoich} step(s): the cell was driven to the end of its usable window, results there are unreliable`);
+		if (floor > 0) this.notes.push(`the electrolyte concentration was held at its ${fmt.number(this.electrolyteFloor, 1)} mol/m³ floor in ${floor} step(s)`);
+		if (this.driveIterationCapHits > 0) this.notes.push(`the drive current did not settle within ${DRIVE_ITERATIONS} iterations in ${this.driveIterationCapHits} step(s); the last iterate was used`);
+		if (this.solverCapHits > 0) this.notes.push(`the charging current search stopped at its ${SOLVER_ITERATIONS}-iteration cap in ${this.solverCapHits} control period(s); the best feasible current found was used`);
+		const dep = this.underLimit['electrolyte-depletion'];
+		if (dep > 0) this.notes.push(`electrolyte depletion limited the charging current for ${fmt.minutes(dep)}`);
+	}
+
 	// ---------------------------------------------------------------- run
 
 	private departureSoc(): number {
@@ -626,8 +712,11 @@ class Simulation {
 		const packAh = cellModel.window.capacity_Ah * this.nCells;
 		let ocv = 3.6;
 		let soc = scenario.arrivalSoc;
-		for (let it = 0; it < 3; it++) {
+		// Fixed point on the mean OCV over the drive's SOC range; stops on the residual.
+		for (let it = 0; it < 30; it++) {
+			const prev = soc;
 			soc = scenario.arrivalSoc + e_J / (SECONDS_PER_HOUR * packAh * ocv);
+			if (it > 0 && Math.abs(soc - prev) < 1e-9) break;
 			const hiSoc = Math.min(1, Math.max(soc, scenario.arrivalSoc));
 			let s = 0;
 			for (let k = 0; k <= 4; k++) {
@@ -707,6 +796,8 @@ class Simulation {
 			this.notes.push(`the target was not reached within the ${fmt.minutes(cap)} time cap`);
 		}
 
+		this.violationMessages(plugIn_s);
+		this.boundNotes();
 		const lithium1 = this.cells[0].lithiumCharge_C();
 		const whr = (j: number) => j / J_PER_WH;
 		const summary: SimulationSummary = {

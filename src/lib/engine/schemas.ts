@@ -456,8 +456,14 @@ export const simulationOptionsSchema = z.object({
 	/** Keep the time series (default true; sweeps pass false). */
 	keepSeries: z.boolean().optional(),
 	protocol: z.enum(['plating-limited', 'cccv'], { message: "protocol must be 'plating-limited' or 'cccv'" }).optional(),
-	/** Charging control period, s (default 1, like a BMS cycle). */
+	/** Charging control period, s (default 1, like a BMS cycle): the shortest charging step. */
 	controlPeriod_s: num('control period', 0.1, 30, (v) => `${v} s`).optional(),
+	/**
+	 * Longer charging steps on smooth stretches (default true): up to 32 control periods while the
+	 * limit in force stays the same and the current changes slowly; back to one period when a limit
+	 * switches. false = every step one control period (the converged reference of the accuracy test).
+	 */
+	adaptiveSteps: z.boolean().optional(),
 	/** Time step during drive and dwell, s (default 5). */
 	driveStep_s: num('drive time step', 0.1, 60, (v) => `${v} s`).optional(),
 	/** Finite-volume shells per particle (default 20). */

@@ -41,6 +41,8 @@ export class LumpedNetwork {
 	protected readonly ambientUA_W_per_K: Float64Array;
 	private cachedDt = -1;
 	private minv: Float64Array[] = [];
+	/** Inverses per step length: adaptive charging steps come back to a few lengths again and again. */
+	private readonly inverses = new Map<number, Float64Array[]>();
 	private readonly rhs: Float64Array;
 
 	constructor(capacity_J_per_K: number[], links: { a: number; b: number; ua_W_per_K: number }[], ambientUA_W_per_K: number[], initialTemp_K: number) {
@@ -80,12 +82,19 @@ export class LumpedNetwork {
 
 	private factor(dt_s: number): void {
 		if (dt_s === this.cachedDt) return;
+		const known = this.inverses.get(dt_s);
+		if (known) {
+			this.minv = known;
+			this.cachedDt = dt_s;
+			return;
+		}
 		const m: number[][] = this.lap.map((row, i) =>
 			row.map((v, j) => v + (i === j ? this.capacity_J_per_K[i] / dt_s + this.ambientUA_W_per_K[i] : 0))
 		);
 		const mi = inv(m) as number[][];
 		this.minv = mi.map((row) => Float64Array.from(row));
 		this.cachedDt = dt_s;
+		if (this.inverses.size < 32) this.inverses.set(dt_s, this.minv);
 	}
 
 	/** Response of node i's new temperature to 1 W into node j (K/W) for the prepared step. */
@@ -207,6 +216,16 @@ export class CoolantController {
 	private integral_W = 0;
 	private lastSetpoint: number | null = null;
 	constructor(private readonly pack: PackDesign) {}
+
+	/** The controller's memory, to undo an update when a step is taken again with another length. */
+	saveState(into: { integral_W: number; lastSetpoint: number | null }): void {
+		into.integral_W = this.integral_W;
+		into.lastSetpoint = this.lastSetpoint;
+	}
+	restoreState(from: { integral_W: number; lastSetpoint: number | null }): void {
+		this.integral_W = from.integral_W;
+		this.lastSetpoint = from.lastSetpoint;
+	}
 
 	update(req: ControlRequest, coolant_K: number, ambient_K: number, dt_s: number, out: ThermalActuation): ThermalActuation {
 		out.heaterElectrical_W = 0;

@@ -54,19 +54,24 @@ export const handle: Handle = async ({ event, resolve }) => {
 	return withSecurityHeaders(await resolve(event));
 };
 
+const FORM_TYPES = new Set(['application/x-www-form-urlencoded', 'multipart/form-data', 'text/plain']);
+
 /**
- * Every state-changing request must come from our own pages. SvelteKit checks the Origin of form
- * posts only (form content types); this covers JSON and every other body type too. A request
- * naming another origin (or the opaque origin "null") is refused; one without an Origin header is
- * refused when the browser says it is cross-site (Sec-Fetch-Site), and allowed otherwise: a
- * client that is not a browser has no other site's page to be tricked by.
+ * Every state-changing request must come from our own pages, whatever its method and content type
+ * (SvelteKit's check, which covered form content types only, is off in svelte.config.js in favour
+ * of this one). Refused: an Origin naming another site or the opaque origin "null"; a form content
+ * type (which any site can post without asking) with no Origin at all; and, with no Origin, a
+ * request the browser marks as not same-origin (Sec-Fetch-Site). Other requests without Origin
+ * come from clients that are not browsers, which no other site's page can drive.
  */
 function crossSiteRefusal(request: Request, url: URL): Response | null {
 	const origin = request.headers.get('origin');
 	const site = request.headers.get('sec-fetch-site');
-	const sameOrigin = origin !== null ? origin === url.origin : site === null || site === 'same-origin' || site === 'none';
+	const type = (request.headers.get('content-type') ?? '').split(';')[0].trim().toLowerCase();
+	const sameOrigin = origin !== null ? origin === url.origin : !FORM_TYPES.has(type) && (site === null || site === 'same-origin' || site === 'none');
 	if (sameOrigin) return null;
-	const message = `Cross-site ${request.method} requests are refused: this one comes from ${origin ?? `another site (${site})`}, not ${url.origin}. Use Paretherm's own pages or a client that sends Origin: ${url.origin}.`;
+	const from = origin ?? (site && site !== 'same-origin' && site !== 'none' ? `another site (Sec-Fetch-Site: ${site})` : 'a form with no Origin header');
+	const message = `Cross-site ${request.method} requests are refused: this one comes from ${from}, not ${url.origin}. Use Paretherm's own pages, or a client that sends Origin: ${url.origin}.`;
 	return url.pathname.startsWith('/api/') || /json/.test(request.headers.get('accept') ?? '')
 		? json({ error: message, field: 'origin' }, { status: 403 })
 		: new Response(message, { status: 403, headers: { 'content-type': 'text/plain; charset=utf-8' } });

@@ -14,7 +14,7 @@ import { queryDb } from '../helpers/db-checksum';
 import { databaseChecksum } from '../helpers/db-checksum';
 import { listRoutes } from '../helpers/routes';
 import { launchBrowser } from '../helpers/browser';
-import { DEMO, DEMO_PASSWORD, OUTSIDER, fillRoute, lookUpIds, seedHardening, signedIn, type Ids } from './helpers';
+import { DEMO, DEMO_PASSWORD, OUTSIDER, fillRoute, lookUpIds, seedHardeningAsync, signedIn, type Ids } from './helpers';
 
 // SMTP on a port where nothing listens: the dispatcher fails and logs, and the password must not leak.
 const SMTP_PASSWORD = 'smtp-Secret-4711-do-not-leak';
@@ -40,7 +40,7 @@ let xssInputId = 0;
 let inviteToken = '';
 
 beforeAll(async () => {
-	app = await startApp({ dataDir: seedHardening(), seed: false, env: { SMTP_URL, PARETHERM_WORKER_THREADS: '1' } });
+	app = await startApp({ dataDir: await seedHardeningAsync(), seed: false, env: { SMTP_URL, PARETHERM_WORKER_THREADS: '1' } });
 	ids = await lookUpIds(app);
 	for (const who of ['engineer', 'architect', 'manager', 'viewer', 'admin'] as const) c[who] = await signedIn(app, DEMO[who]);
 	c.outsider = await signedIn(app, OUTSIDER);
@@ -274,7 +274,7 @@ describe('session cookie', () => {
 	});
 
 	it('should be Secure when ORIGIN is https', async () => {
-		const https = await startApp({ dataDir: seedHardening(undefined, { sweeps: false }), seed: false, env: { ORIGIN: 'https://paretherm.example', PARETHERM_NO_RUNTIME: '1' } });
+		const https = await startApp({ dataDir: await seedHardeningAsync(undefined, { sweeps: false }), seed: false, env: { ORIGIN: 'https://paretherm.example', PARETHERM_NO_RUNTIME: '1' } });
 		try {
 			const res = await fetch(`${https.url}/login`, {
 				method: 'POST',

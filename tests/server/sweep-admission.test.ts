@@ -28,6 +28,7 @@ const { activeQueue } = await import('../../src/lib/server/sweeps/registry');
 const { chunkJobId, QUEUE_PREFIX, SWEEP_QUEUE } = await import('../../src/lib/server/queue/names');
 const runtime = await import('../../src/lib/server/sweeps/runtime');
 const sweepsRoute = await import('../../src/routes/api/programs/[programId]/sweeps/+server');
+const builderPage = await import('../../src/routes/programs/[programId]/sweeps/new/+page.server');
 
 type TestRedis = Awaited<ReturnType<typeof startTestRedis>>;
 let redis: TestRedis;
@@ -103,6 +104,21 @@ describe('caps on queued simulations', () => {
 		const body = await res.json();
 		expect(body.field).toBe('definition');
 		expect(body.error).toMatch(/the limit per person is 300/);
+	});
+
+	it('should answer the sweep builder form with the same message', async () => {
+		const fields: Record<string, string> = { name: 'over the cap', scenarioId: 'short-stop', cells: 'nmc', packs: 'pack', ambients: '-10, 0', soh: '100', socs: '20', leadTimes: '0 1 2 3 4 5 6 7 8 9', setpoints: '10 13 16 19 22 25 28 31 34 37', heaterCaps: '', budget: '' };
+		const form = new FormData();
+		for (const [k, v] of Object.entries(fields)) form.set(k, v);
+		const before = await Sweep.count();
+		const result = (await builderPage.actions.default({
+			locals: { user: { id: users.one, email: 'one@example.org', name: 'one', isAdmin: false }, session: null },
+			params: { programId: String(programA) },
+			request: new Request('http://localhost/programs/x/sweeps/new', { method: 'POST', body: form })
+		} as never)) as { status: number; data: { message: string } };
+		expect(result.status).toBe(429);
+		expect(result.data.message).toMatch(/adds 202 simulations to the 202 your sweeps still have queued or running; the limit per person is 300\./);
+		expect(await Sweep.count()).toBe(before);
 	});
 
 	it('should make room again once a sweep is cancelled', async () => {

@@ -37,7 +37,7 @@ export async function seedHardeningAsync(dataDir = tempDataDir('paretherm-harden
 }
 
 export async function startHardenedApp(opts: { env?: Record<string, string>; dataDir?: string } = {}): Promise<RunningApp> {
-	const dataDir = opts.dataDir ?? seedHardening();
+	const dataDir = opts.dataDir ?? (await seedHardeningAsync());
 	return startApp({ dataDir, seed: false, env: opts.env });
 }
 

@@ -67,7 +67,7 @@ export async function startApp(options: { dataDir?: string; env?: Record<string,
 	if (!fs.existsSync(path.join(ROOT, 'build/index.js')))
 		throw new Error('No build/ found: run `npm run build` before the server tests (scripts/test.sh does).');
 	const dataDir = options.dataDir ?? tempDataDir();
-	if (options.seed !== false) seed(dataDir);
+	if (options.seed !== false) await seedAsync(dataDir);
 	const port = await freePort();
 	const url = `http://localhost:${port}`;
 	let output = '';

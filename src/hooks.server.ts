@@ -1,14 +1,34 @@
-import { error, isHttpError, redirect, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
+import { error, isHttpError, json, redirect, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { ensureDb } from '$lib/server/db/index';
+import { SECURITY_HEADERS } from '$lib/security-headers.js';
+import { jsonBodyLimit, tooLargeMessage } from '$lib/server/json-body';
 import { lucia } from '$lib/server/auth/lucia';
+import { throttleSettingsFromEnv } from '$lib/server/auth/throttle';
+import { queueCaps } from '$lib/server/sweeps/admission';
 import { startRuntime } from '$lib/server/runtime';
 
 export const init: ServerInit = async () => {
+	// Settings read per request are checked once here, so a bad value stops the start with its name.
+	jsonBodyLimit();
+	throttleSettingsFromEnv();
+	queueCaps();
 	await ensureDb();
 	await startRuntime();
 };
 
+const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
+
+function withSecurityHeaders(response: Response): Response {
+	for (const [name, value] of Object.entries(SECURITY_HEADERS)) response.headers.set(name, value);
+	return response;
+}
+
 export const handle: Handle = async ({ event, resolve }) => {
+	// Before the session is looked at: a refused request changes nothing, not even a session's expiry.
+	if (STATE_CHANGING.has(event.request.method)) {
+		const refused = crossSiteRefusal(event.request, event.url) ?? oversizedJsonRefusal(event.request, event.url);
+		if (refused) return withSecurityHeaders(refused);
+	}
 	await ensureDb();
 	const sessionId = event.cookies.get(lucia.sessionCookieName);
 	event.locals.user = null;
@@ -31,13 +51,40 @@ export const handle: Handle = async ({ event, resolve }) => {
 		redirect(303, `/login?next=${encodeURIComponent(next)}`);
 	}
 	if (event.request.method === 'POST') answerUnreadableForms(event.request, event.url);
-	const response = await resolve(event);
-	response.headers.set('X-Frame-Options', 'DENY');
-	response.headers.set('X-Content-Type-Options', 'nosniff');
-	response.headers.set('Referrer-Policy', 'same-origin');
-	response.headers.set('Permissions-Policy', 'camera=(), microphone=(), geolocation=()');
-	return response;
+	return withSecurityHeaders(await resolve(event));
 };
+
+const FORM_TYPES = new Set(['application/x-www-form-urlencoded', 'multipart/form-data', 'text/plain']);
+
+/**
+ * Every state-changing request must come from our own pages, whatever its method and content type
+ * (SvelteKit's check, which covered form content types only, is off in svelte.config.js in favour
+ * of this one). Refused: an Origin naming another site or the opaque origin "null"; a form content
+ * type (which any site can post without asking) with no Origin at all; and, with no Origin, a
+ * request the browser marks as not same-origin (Sec-Fetch-Site). Other requests without Origin
+ * come from clients that are not browsers, which no other site's page can drive.
+ */
+function crossSiteRefusal(request: Request, url: URL): Response | null {
+	const origin = request.headers.get('origin');
+	const site = request.headers.get('sec-fetch-site');
+	const type = (request.headers.get('content-type') ?? '').split(';')[0].trim().toLowerCase();
+	const sameOrigin = origin !== null ? origin === url.origin : !FORM_TYPES.has(type) && (site === null || site === 'same-origin' || site === 'none');
+	if (sameOrigin) return null;
+	const from = origin ?? (site && site !== 'same-origin' && site !== 'none' ? `another site (Sec-Fetch-Site: ${site})` : 'a form with no Origin header');
+	const message = `Cross-site ${request.method} requests are refused: this one comes from ${from}, not ${url.origin}. Use Paretherm's own pages, or a client that sends Origin: ${url.origin}.`;
+	return url.pathname.startsWith('/api/') || /json/.test(request.headers.get('accept') ?? '')
+		? json({ error: message, field: 'origin' }, { status: 403 })
+		: new Response(message, { status: 403, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+}
+
+/** JSON API bodies have their own small limit; a declared length over it is refused before reading. */
+function oversizedJsonRefusal(request: Request, url: URL): Response | null {
+	if (!url.pathname.startsWith('/api/')) return null;
+	const declared = Number(request.headers.get('content-length'));
+	const limit = jsonBodyLimit();
+	if (!Number.isFinite(declared) || declared <= limit) return null;
+	return json({ error: tooLargeMessage(declared, limit), field: 'body' }, { status: 413 });
+}
 
 export const handleError: HandleServerError = ({ error, status }) => {
 	// Unexpected errors are logged server-side; the browser gets no internals.

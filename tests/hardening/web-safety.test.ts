@@ -1,10 +1,11 @@
 /**
  * Web safety of the built app: markup in every name and text people type is served escaped
  * (and runs nothing in chromium); security headers on pages, JSON and error answers; the content
- * security policy still lets the charts draw (no violation in chromium); SvelteKit's origin check
- * on every form action of the route tree; session cookie flags over http and https; sign-in
- * throttling per address; and no password hash, session id, SMTP password or invitation token in
- * any response of a crawl of every route by every role, nor in the server log.
+ * security policy still lets the charts draw (no violation in chromium); the same headers on static
+ * files; the origin check on every form action and every JSON write of the route tree; session
+ * cookie flags over http and https; an address trying many accounts locks nobody out; and no
+ * password hash, session id, SMTP password or invitation token in any response of a crawl of
+ * every route by every role, nor in the server log.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext } from 'playwright-core';
@@ -13,7 +14,8 @@ import { queryDb } from '../helpers/db-checksum';
 import { databaseChecksum } from '../helpers/db-checksum';
 import { listRoutes } from '../helpers/routes';
 import { launchBrowser } from '../helpers/browser';
-import { DEMO, DEMO_PASSWORD, OUTSIDER, fillRoute, lookUpIds, seedHardening, signedIn, type Ids } from './helpers';
+import { waitFor } from '../helpers/sweeps';
+import { DEMO, DEMO_PASSWORD, OUTSIDER, fillRoute, lookUpIds, seedHardeningAsync, signedIn, type Ids } from './helpers';
 
 // SMTP on a port where nothing listens: the dispatcher fails and logs, and the password must not leak.
 const SMTP_PASSWORD = 'smtp-Secret-4711-do-not-leak';
@@ -39,7 +41,7 @@ let xssInputId = 0;
 let inviteToken = '';
 
 beforeAll(async () => {
-	app = await startApp({ dataDir: seedHardening(), seed: false, env: { SMTP_URL, PARETHERM_WORKER_THREADS: '1' } });
+	app = await startApp({ dataDir: await seedHardeningAsync(), seed: false, env: { SMTP_URL, PARETHERM_WORKER_THREADS: '1' } });
 	ids = await lookUpIds(app);
 	for (const who of ['engineer', 'architect', 'manager', 'viewer', 'admin'] as const) c[who] = await signedIn(app, DEMO[who]);
 	c.outsider = await signedIn(app, OUTSIDER);
@@ -167,6 +169,21 @@ describe('security headers', () => {
 		for (const [what, res] of answers.filter(([w]) => w.startsWith('JSON'))) expect(res.headers.get('content-type'), what).toMatch(/^application\/json/);
 	});
 
+	it('should send the same headers with static files (immutable app files, favicon)', async () => {
+		const html = await (await c.anonymous.get('/login')).text();
+		const asset = /\/_app\/immutable\/[\w./-]+\.js/.exec(html)?.[0];
+		expect(asset).toBeTruthy();
+		for (const url of [asset!, '/favicon.svg']) {
+			const res = await c.anonymous.get(url);
+			expect(res.status, url).toBe(200);
+			expect(res.headers.get('x-content-type-options'), url).toBe('nosniff');
+			expect(res.headers.get('x-frame-options'), url).toBe('DENY');
+			expect(res.headers.get('referrer-policy'), url).toBe('same-origin');
+			expect(res.headers.get('cross-origin-resource-policy'), url).toBe('same-origin');
+			await res.arrayBuffer();
+		}
+	});
+
 	it('should let every chart draw under the content security policy, with no violation', async () => {
 		const browser = await launchBrowser();
 		try {
@@ -205,7 +222,15 @@ describe('security headers', () => {
 
 describe('origin check on form actions', () => {
 	it('should refuse every form action of the route tree posted from another site or with no origin, changing nothing', async () => {
-		const before = await databaseChecksum(app.dataDir, ['sessions']);
+		// Background writes are let finish first rather than raced: the sweep queued in beforeAll, and
+		// the mail dispatcher retrying against the unreachable SMTP server (its table is skipped).
+		await waitFor('the markup sweep to finish and its digest to be written', async () => {
+			const [s] = await queryDb<{ status: string }>(app.dataDir, 'SELECT status FROM sweeps WHERE id = ?', [xssSweepId]);
+			const marks = await queryDb(app.dataDir, 'SELECT key FROM mail_marks WHERE key = ?', [`sweep-digest:${xssSweepId}`]);
+			return ['done', 'failed'].includes(s.status) && marks.length > 0;
+		}, 120_000, 200);
+		const quiet = ['sessions', 'mail_outbox'];
+		const before = await databaseChecksum(app.dataDir, quiet);
 		const problems: string[] = [];
 		for (const r of listRoutes()) {
 			if (r.kind !== 'page') continue;
@@ -221,13 +246,30 @@ describe('origin check on form actions', () => {
 				}
 			}
 		}
-		// JSON routes: a cross-site "simple" POST (a form content type needs no preflight) is refused too.
-		const res = await fetch(`${app.url}/api/programs/${ids.programId}/sweeps`, { method: 'POST', headers: { cookie: c.engineer.cookieHeader(), origin: 'http://evil.example', 'content-type': 'text/plain' }, body: '{}' });
-		expect(res.status).toBe(403);
+		// JSON routes: every write method, whatever the content type, from another origin, the opaque
+		// origin, or (no Origin header) a request the browser marks cross-site.
+		let jsonWrites = 0;
+		for (const r of listRoutes()) {
+			if (r.kind !== 'endpoint') continue;
+			for (const method of r.methods.filter((m) => m !== 'GET')) {
+				const url = app.url + fillRoute(r.id, { ...ids, sweepId: xssSweepId });
+				const senders: Record<string, string>[] = [{ origin: 'http://evil.example' }, { origin: 'null' }, { 'sec-fetch-site': 'cross-site' }, { 'sec-fetch-site': 'same-site' }];
+				for (const from of senders) {
+					for (const type of ['application/json', 'text/plain']) {
+						const res = await fetch(url, { method, headers: { cookie: c.engineer.cookieHeader(), 'content-type': type, accept: 'application/json', ...from }, body: '{}', redirect: 'manual' });
+						const body = await res.text();
+						jsonWrites++;
+						if (res.status !== 403) problems.push(`${method} ${r.id} from ${JSON.stringify(from)} as ${type}: ${res.status}`);
+						else if (!/"error":"Cross-site \w+ requests are refused/.test(body)) problems.push(`${method} ${r.id}: 403 without a JSON error (${body.slice(0, 80)})`);
+					}
+				}
+			}
+		}
+		expect(jsonWrites).toBeGreaterThanOrEqual(16);
 		expect(problems).toEqual([]);
-		// Sessions are skipped only because a refused request may still refresh its caller's expiry.
-		expect(await databaseChecksum(app.dataDir, ['sessions'])).toBe(before);
-	}, 120_000);
+		// Sessions are skipped because a request may still refresh its caller's expiry.
+		expect(await databaseChecksum(app.dataDir, quiet)).toBe(before);
+	}, 180_000);
 });
 
 describe('session cookie', () => {
@@ -241,7 +283,7 @@ describe('session cookie', () => {
 	});
 
 	it('should be Secure when ORIGIN is https', async () => {
-		const https = await startApp({ dataDir: seedHardening(undefined, { sweeps: false }), seed: false, env: { ORIGIN: 'https://paretherm.example', PARETHERM_NO_RUNTIME: '1' } });
+		const https = await startApp({ dataDir: await seedHardeningAsync(undefined, { sweeps: false }), seed: false, env: { ORIGIN: 'https://paretherm.example', PARETHERM_NO_RUNTIME: '1' } });
 		try {
 			const res = await fetch(`${https.url}/login`, {
 				method: 'POST',
@@ -261,22 +303,12 @@ describe('session cookie', () => {
 });
 
 describe('sign-in throttling', () => {
-	it('should lock an address that tries many accounts, even for a right password, and say until when', async () => {
-		// A separate app: the lock is per process and would shut out the other suites' sign-ins.
-		const own = await startApp({ dataDir: seedHardening(undefined, { sweeps: false }), seed: false, env: { PARETHERM_NO_RUNTIME: '1' } });
-		try {
-			const statuses: number[] = [];
-			for (let i = 0; i < 20; i++) statuses.push((await new Client(own.url).signIn(`nobody-${i}@paretherm.test`, 'wrong-password')).status);
-			expect(statuses.slice(0, 19).every((s) => s === 400)).toBe(true);
-			expect(statuses[19]).toBe(429);
-			const right = await new Client(own.url).signIn(DEMO.manager, DEMO_PASSWORD);
-			expect(right.status).toBe(429);
-			expect(await right.text()).toMatch(/Too many failed sign-ins\. Try again in \d+ minutes? \(after \d\d:\d\d UTC\)/);
-			expect(right.headers.getSetCookie().some((s) => s.startsWith('paretherm_session=') && !/max-age=0/i.test(s))).toBe(false);
-		} finally {
-			await own.stop();
-		}
-	}, 120_000);
+	it('should not lock out other accounts from an address that tries many accounts', async () => {
+		// Waits are per account and address (tests/hardening/accounts.test.ts): a proxy's address
+		// with many failures must not shut out the people behind it.
+		for (let i = 0; i < 25; i++) expect((await new Client(app.url).signIn(`nobody-${i}@paretherm.test`, 'wrong-password')).status).toBe(400);
+		expect((await new Client(app.url).signIn(DEMO.manager, DEMO_PASSWORD)).status).toBe(303);
+	});
 });
 
 describe('no secrets in responses or the log', () => {

@@ -36,6 +36,25 @@ export function seed(dataDir: string, script = 'scripts/seed.ts', extraEnv: Reco
 	});
 }
 
+/**
+ * The same as `seed`, without blocking this process while it runs (a long synchronous seed stalls
+ * the test runner's own messages on a busy machine).
+ */
+export function seedAsync(dataDir: string, script = 'scripts/seed.ts', extraEnv: Record<string, string> = {}): Promise<void> {
+	return new Promise((resolve, reject) => {
+		const proc = spawn(path.join(ROOT, 'node_modules/.bin/tsx'), [script], {
+			cwd: ROOT,
+			env: { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_BCRYPT_COST: '4', PARETHERM_SEED_SWEEP: '0', ...extraEnv },
+			stdio: ['ignore', 'pipe', 'pipe']
+		});
+		let output = '';
+		proc.stdout!.on('data', (d) => (output += d));
+		proc.stderr!.on('data', (d) => (output += d));
+		proc.once('error', reject);
+		proc.once('exit', (code) => (code === 0 ? resolve() : reject(new Error(`${script} exited with ${code}:\n${output}`))));
+	});
+}
+
 export interface RunningApp {
 	url: string;
 	dataDir: string;
@@ -48,7 +67,7 @@ export async function startApp(options: { dataDir?: string; env?: Record<string,
 	if (!fs.existsSync(path.join(ROOT, 'build/index.js')))
 		throw new Error('No build/ found: run `npm run build` before the server tests (scripts/test.sh does).');
 	const dataDir = options.dataDir ?? tempDataDir();
-	if (options.seed !== false) seed(dataDir);
+	if (options.seed !== false) await seedAsync(dataDir);
 	const port = await freePort();
 	const url = `http://localhost:${port}`;
 	let output = '';

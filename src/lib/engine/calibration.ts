@@ -39,6 +39,7 @@
 import { kneedle } from './kneedle';
 import { paretoFront } from './pareto';
 import type { ScenarioKey } from './sweep-grid';
+import { writeCsv } from '../csv';
 
 export type { ScenarioKey } from './sweep-grid';
 
@@ -342,38 +343,18 @@ export function toExportRow(row: CalibrationRow): CalibrationExportRow {
 }
 
 /**
- * Text cell for CSV: neutralise spreadsheet formula injection (OWASP "CSV
- * Injection": a cell starting with = + - @, tab or carriage return is prefixed
- * with an apostrophe), then quote per RFC 4180 §2 (fields containing a comma,
- * double quote, CR or LF are enclosed in double quotes, inner quotes doubled).
- */
-export function csvTextCell(text: string): string {
-	const safe = /^[=+\-@\t\r]/.test(text) ? `'${text}` : text;
-	return /[",\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;
-}
-
-/** Number cell for CSV: written as is (negative numbers are not text); empty when missing. */
-function csvNumberCell(v: number | null): string {
-	return v === null ? '' : String(v);
-}
-
-/**
- * RFC 4180 CSV: a header line with units in the column names, then one record
- * per row; CRLF line breaks, including after the last record (RFC 4180 §2
- * allows it). Missing values (baseline rows, no heater cap) are empty cells.
+ * RFC 4180 CSV through the product's one CSV writer (src/lib/csv.ts, formula-escaped text cells):
+ * a header line with units in the column names, then one record per row; CRLF line breaks,
+ * including after the last record. Missing values (baseline rows, no heater cap) are empty cells.
  */
 export function calibrationCsv(table: readonly CalibrationRow[]): string {
-	const lines: string[] = [CALIBRATION_CSV_HEADER.join(',')];
-	for (const row of table) {
-		const r = toExportRow(row);
-		lines.push(
-			CALIBRATION_CSV_HEADER.map((col) => {
-				const v = r[col];
-				return typeof v === 'string' ? csvTextCell(v) : csvNumberCell(v);
-			}).join(',')
-		);
-	}
-	return lines.join('\r\n') + '\r\n';
+	return writeCsv(
+		CALIBRATION_CSV_HEADER,
+		table.map((row) => {
+			const r = toExportRow(row);
+			return CALIBRATION_CSV_HEADER.map((col) => r[col]);
+		})
+	);
 }
 
 export const CALIBRATION_FORMAT = 'paretherm-calibration/1';

@@ -48,8 +48,11 @@ export function cleanText(raw: unknown, what: string, max: number, required = tr
 	return text;
 }
 
-/** Throws StrategyError (409 impossible move, 403 not this role's move); checked before anything else. */
-export function assertMoveAllowed(strategy: Strategy, to: StrategyState, can: { edit: boolean; decide: boolean }) {
+/**
+ * Throws StrategyError (409 impossible move, 403 not this role's move, or a withdrawal by someone
+ * other than the proposer); checked before anything else.
+ */
+export function assertMoveAllowed(strategy: Strategy, to: StrategyState, can: { edit: boolean; decide: boolean }, actorId: string) {
 	const move = TRANSITIONS.find((t) => t.from === strategy.state && t.to === to);
 	if (!move)
 		throw new StrategyError(`A ${STATE_LABEL[strategy.state].toLowerCase()} strategy cannot become ${STATE_LABEL[to].toLowerCase()}.`, 409, 'state');
@@ -59,10 +62,17 @@ export function assertMoveAllowed(strategy: Strategy, to: StrategyState, can: { 
 			403,
 			'state'
 		);
+	if (to === 'withdrawn' && strategy.created_by !== actorId)
+		throw new StrategyError('Only the engineer who proposed this strategy may withdraw it; comment or ask a pack architect to decline it instead.', 403, 'state');
+}
+
+/** The moves `actorId` may offer on the strategy page (withdrawal only to its proposer). */
+export function movesFor(strategy: Strategy, actorId: string) {
+	return TRANSITIONS.filter((t) => t.from === strategy.state && (t.to !== 'withdrawn' || strategy.created_by === actorId));
 }
 
 export async function changeState(strategy: Strategy, to: StrategyState, userId: string, note: string, can: { edit: boolean; decide: boolean }) {
-	assertMoveAllowed(strategy, to, can);
+	assertMoveAllowed(strategy, to, can, userId);
 	await sequelize.transaction(async (transaction) => {
 		const from = strategy.state;
 		if (to === 'endorsed') {

@@ -1,5 +1,5 @@
 /**
- * CSV export of stored upload columns and check series.
+ * CSV export of stored upload columns and check series, through the one CSV writer (src/lib/csv.ts).
  *
  * Numbers are written with JavaScript's shortest round-trip representation
  * (`String(x)`, ECMA-262 Number::toString), so reading the file back gives
@@ -8,15 +8,16 @@
  * same columns bit for bit (tested).
  */
 import { CANONICAL_COLUMNS, type UploadKind } from './parse-upload';
+import { writeCsv } from '../csv';
 
 /** CSV text of named columns in the given order (columns absent from `columns` are skipped). */
 export function columnsToCsv(order: readonly string[], columns: Record<string, readonly number[] | null | undefined>): string {
 	const names = order.filter((n) => Array.isArray(columns[n]));
 	const cols = names.map((n) => columns[n] as readonly number[]);
 	const rows = cols.length ? cols[0].length : 0;
-	const out: string[] = [names.join(',')];
-	for (let r = 0; r < rows; r++) out.push(cols.map((c) => String(c[r])).join(','));
-	return out.join('\n') + '\n';
+	const records: number[][] = [];
+	for (let r = 0; r < rows; r++) records.push(cols.map((c) => c[r]));
+	return writeCsv(names, records, { newline: '\n' });
 }
 
 export function uploadToCsv(kind: UploadKind, columns: Record<string, readonly number[]>): string {

@@ -4,6 +4,7 @@
  * screen-reader summaries. No DOM, no ECharts: tested in tests/engine/chart-data.test.ts.
  */
 import type { FrontPoint, HeatmapCell, ParetoPoint, TraceLimits, TraceSeries } from './types';
+import { writeCsv, type CsvCell } from '../../csv';
 
 const ZERO_CELSIUS_K = 273.15;
 
@@ -31,16 +32,16 @@ export function csvNumber(value: number, digits = 6): string {
 
 type Cell = string | number | boolean | null | undefined;
 
-function csvCell(v: Cell): string {
-	if (v === null || v === undefined) return '';
-	if (typeof v === 'number') return csvNumber(v);
+/** Numbers rounded for the file, booleans as yes/no; quoting and formula escaping are the writer's. */
+function csvCell(v: Cell): CsvCell {
+	if (typeof v === 'number') return Number.isFinite(v) ? Number(csvNumber(v)) : null;
 	if (typeof v === 'boolean') return v ? 'yes' : 'no';
-	return /[",\r\n]/.test(v) || /^\s|\s$/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
+	return v;
 }
 
-/** RFC 4180 CSV: header row then rows, CRLF line ends, quotes only where needed. */
+/** RFC 4180 CSV through the one CSV writer (src/lib/csv.ts): header row then rows, CRLF line ends. */
 export function toCsv(header: string[], rows: Cell[][]): string {
-	return [header, ...rows].map((r) => r.map(csvCell).join(',')).join('\r\n') + '\r\n';
+	return writeCsv(header, rows.map((r) => r.map(csvCell)));
 }
 
 /** Feasible front points in order of energy (ties by time saved), for the front line. */

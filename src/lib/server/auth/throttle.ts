@@ -1,60 +1,106 @@
 /**
- * Sign-in throttling. Failures are counted per account and per client address in a sliding
- * window; past the limit the key is locked for a fixed time and the user is told when to retry.
- * Kept in memory: there is one web process (the single SQLite writer), and a restart forgiving
- * the counters is acceptable. Limits are common practice, no source.
+ * Sign-in throttling with growing delays, keyed on account + client address, so whoever guesses
+ * passwords slows down only their own guesses at that account from that address: the owner signing
+ * in from elsewhere, and other people behind the same proxy, are not held up.
+ *
+ * The first `freeFailures` failures cost nothing; from then on each failure makes that
+ * account-and-address wait `baseDelay_s`, then twice as long after the next failure, and so on up
+ * to `maxDelay_s`. Failures are forgotten `window_s` after the first one, and a successful sign-in
+ * clears them. Counters live in the app's Redis (rate-limiter-flexible), shared by every web
+ * process; when Redis is not reachable (or not started, as in page-only test runs) an in-memory
+ * limiter stands in. Limits are common practice, no source; configure them with
+ * PARETHERM_SIGNIN_FREE_FAILURES, PARETHERM_SIGNIN_DELAY_S and PARETHERM_SIGNIN_MAX_DELAY_S.
  */
-export const THROTTLE = {
-	window_ms: 15 * 60_000,
-	accountFailures: 5,
-	addressFailures: 20,
-	lock_ms: 15 * 60_000
-};
+import { createHash } from 'node:crypto';
+import { RateLimiterMemory, RateLimiterRedis, type RateLimiterAbstract } from 'rate-limiter-flexible';
 
-type Entry = { failures: number[]; lockedUntil: number };
-const entries = new Map<string, Entry>();
-
-function entry(key: string): Entry {
-	let e = entries.get(key);
-	if (!e) {
-		e = { failures: [], lockedUntil: 0 };
-		entries.set(key, e);
-	}
-	return e;
+export interface ThrottleSettings {
+	freeFailures: number;
+	baseDelay_s: number;
+	maxDelay_s: number;
+	window_s: number;
 }
 
-/** Returns the time (ms epoch) until which sign-in is refused, or null when allowed. */
-export function lockedUntil(keys: string[], now = Date.now()): number | null {
-	let until = 0;
-	for (const key of keys) until = Math.max(until, entries.get(key)?.lockedUntil ?? 0);
-	return until > now ? until : null;
+function envInt(name: string, fallback: number, min: number): number {
+	const raw = process.env[name];
+	if (raw === undefined || raw.trim() === '') return fallback;
+	const v = Number(raw);
+	if (!Number.isInteger(v) || v < min) throw new Error(`${name} must be a whole number of at least ${min} (got “${raw}”).`);
+	return v;
 }
 
-export function recordFailure(accountKey: string, addressKey: string, now = Date.now()): void {
-	for (const [key, limit] of [
-		[accountKey, THROTTLE.accountFailures],
-		[addressKey, THROTTLE.addressFailures]
-	] as const) {
-		const e = entry(key);
-		e.failures = e.failures.filter((t) => now - t < THROTTLE.window_ms);
-		e.failures.push(now);
-		if (e.failures.length >= limit) {
-			e.lockedUntil = now + THROTTLE.lock_ms;
-			e.failures = [];
+export function throttleSettingsFromEnv(): ThrottleSettings {
+	return {
+		freeFailures: envInt('PARETHERM_SIGNIN_FREE_FAILURES', 5, 1),
+		baseDelay_s: envInt('PARETHERM_SIGNIN_DELAY_S', 1, 1),
+		maxDelay_s: envInt('PARETHERM_SIGNIN_MAX_DELAY_S', 15 * 60, 1),
+		window_s: 24 * 3600
+	};
+}
+
+/** The wait imposed after the `failures`-th failure in the window (0 while failures are free). */
+export function delayAfter_s(failures: number, s: ThrottleSettings): number {
+	if (failures < s.freeFailures) return 0;
+	return Math.min(s.maxDelay_s, s.baseDelay_s * 2 ** Math.min(failures - s.freeFailures, 30));
+}
+
+/** Account and address in one key; hashed so Redis holds no e-mail addresses. */
+export function throttleKey(email: string, address: string): string {
+	return createHash('sha256').update(`${email}\n${address}`).digest('base64url');
+}
+
+export interface SignInThrottle {
+	readonly settings: ThrottleSettings;
+	/** Milliseconds this key must still wait before its next attempt (0: go ahead). */
+	waitMs(key: string): Promise<number>;
+	/** Count a failure; returns the wait it imposes in milliseconds (0 while failures are free). */
+	recordFailure(key: string): Promise<number>;
+	/** A right password: forget the key's failures and wait. */
+	recordSuccess(key: string): Promise<void>;
+}
+
+/** Redis-like client as rate-limiter-flexible takes it (ioredis, or ioredis-mock in unit tests). */
+export type ThrottleStore = ConstructorParameters<typeof RateLimiterRedis>[0]['storeClient'];
+
+export function createSignInThrottle(opts: { store?: ThrottleStore | null; settings?: ThrottleSettings; prefix?: string } = {}): SignInThrottle {
+	const settings = opts.settings ?? throttleSettingsFromEnv();
+	const prefix = opts.prefix ?? `${process.env.PARETHERM_QUEUE_PREFIX || 'paretherm'}:signin`;
+	// Failures: a counter that never refuses by itself; the wait is a separate block below.
+	const failureOpts = { keyPrefix: `${prefix}:failures`, points: Number.MAX_SAFE_INTEGER, duration: settings.window_s };
+	const waitOpts = { keyPrefix: `${prefix}:wait`, points: 1, duration: 1 };
+	const limiter = (o: typeof failureOpts): RateLimiterAbstract =>
+		opts.store
+			? new RateLimiterRedis({ ...o, storeClient: opts.store, rejectIfRedisNotReady: true, insuranceLimiter: new RateLimiterMemory(o) })
+			: new RateLimiterMemory(o);
+	const failures = limiter(failureOpts);
+	const waits = limiter(waitOpts);
+
+	return {
+		settings,
+		async waitMs(key) {
+			const res = await waits.get(key);
+			return res && res.consumedPoints > waitOpts.points ? Math.max(0, res.msBeforeNext) : 0;
+		},
+		async recordFailure(key) {
+			const res = await failures.penalty(key, 1);
+			const delay_s = delayAfter_s(res.consumedPoints, settings);
+			if (delay_s > 0) await waits.block(key, delay_s);
+			return delay_s * 1000;
+		},
+		async recordSuccess(key) {
+			await Promise.all([failures.delete(key), waits.delete(key)]);
 		}
-	}
-	if (entries.size > 50_000) prune(now);
+	};
 }
 
-export function recordSuccess(accountKey: string): void {
-	entries.delete(accountKey);
+// One throttle per process, on Redis once the runtime hands over a client (runtime.ts).
+const holder = globalThis as typeof globalThis & { __parethermSignInThrottle?: SignInThrottle };
+
+export function signInThrottle(): SignInThrottle {
+	return (holder.__parethermSignInThrottle ??= createSignInThrottle());
 }
 
-function prune(now: number) {
-	for (const [key, e] of entries)
-		if (e.lockedUntil < now && e.failures.every((t) => now - t >= THROTTLE.window_ms)) entries.delete(key);
-}
-
-export function resetThrottle(): void {
-	entries.clear();
+/** Put the process's throttle on this Redis client (null: back to memory). */
+export function useThrottleStore(store: ThrottleStore | null): void {
+	holder.__parethermSignInThrottle = createSignInThrottle({ store });
 }

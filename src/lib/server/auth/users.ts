@@ -1,6 +1,8 @@
 /** User administration shared by the admin pages, the seed and the invitation flow. */
 import { encodeBase32LowerCaseNoPadding, encodeHexLowerCase } from '@oslojs/encoding';
 import { sha256 } from '@oslojs/crypto/sha2';
+import { Op } from 'sequelize';
+import { sequelize } from '../db/index';
 import { Invitation, User } from '../db/models/index';
 import { hashPassword } from './password';
 import { lucia } from './lucia';
@@ -67,4 +69,22 @@ export async function findOpenInvitation(token: string): Promise<Invitation | nu
 	const inv = await Invitation.findByPk(tokenHash(token));
 	if (!inv || inv.used_at || Number(inv.expires_at) < Date.now()) return null;
 	return inv;
+}
+
+/**
+ * Set the password through an open invitation: the link is used up, every other open invitation
+ * of the person stops working, and every existing session of the person ends (whoever held an
+ * older link or session no longer gets in). Returns false when the link was used meanwhile.
+ */
+export async function acceptInvitation(inv: Invitation, passwordHash: string): Promise<boolean> {
+	const now = Date.now();
+	const accepted = await sequelize.transaction(async (transaction) => {
+		const [used] = await Invitation.update({ used_at: now }, { where: { token_hash: inv.token_hash, used_at: null }, transaction });
+		if (used === 0) return false;
+		await User.update({ password_hash: passwordHash }, { where: { id: inv.user_id }, transaction });
+		await Invitation.update({ used_at: now }, { where: { user_id: inv.user_id, used_at: null, token_hash: { [Op.ne]: inv.token_hash } }, transaction });
+		return true;
+	});
+	if (accepted) await lucia.invalidateUserSessions(inv.user_id);
+	return accepted;
 }

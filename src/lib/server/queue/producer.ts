@@ -73,10 +73,23 @@ export class SweepQueue {
 		this.events = events;
 	}
 
-	async addChunk(data: ChunkJobData): Promise<string> {
+	/** `priority`: 1 is taken first (BullMQ orders by priority, then by insertion); omitted = before all prioritised jobs. */
+	async addChunk(data: ChunkJobData, priority?: number): Promise<string> {
 		const jobId = chunkJobId(data.sweepId, data.queueToken, data.chunkIndex);
-		await this.queue.add(JOB_SWEEP_CHUNK, data, { ...JOB_OPTIONS, jobId });
+		await this.queue.add(JOB_SWEEP_CHUNK, data, { ...JOB_OPTIONS, jobId, ...(priority ? { priority } : {}) });
 		return jobId;
+	}
+
+	/** Many chunks in few round trips (batches of 500); ids already queued are left as they are. */
+	async addChunks(chunks: { data: ChunkJobData; priority?: number }[]): Promise<void> {
+		for (let i = 0; i < chunks.length; i += 500)
+			await this.queue.addBulk(
+				chunks.slice(i, i + 500).map(({ data, priority }) => ({
+					name: JOB_SWEEP_CHUNK,
+					data,
+					opts: { ...JOB_OPTIONS, jobId: chunkJobId(data.sweepId, data.queueToken, data.chunkIndex), ...(priority ? { priority } : {}) }
+				}))
+			);
 	}
 
 	async addSeries(data: SeriesJobData): Promise<string> {

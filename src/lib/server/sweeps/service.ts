@@ -25,6 +25,7 @@ import type { SweepQueue } from '../queue/producer';
 import { activeQueue, clearProgress } from './registry';
 import { resolveSweepInputs, scenarioInputsFor, strategyInput, type SweepInputs } from './inputs';
 import { parseSweepRequest } from './request';
+import { assertQueueRoom, chunkPriority, programBacklogChunks } from './admission';
 import { notifySweepFinished } from '../mail/sweep-digest';
 
 export { SweepInputError } from './request';
@@ -94,8 +95,9 @@ export function defaultChunkSize(simulations: number): number {
 
 /**
  * Validate `body` (see request.ts), resolve and snapshot its parameter sets, store the sweep and
- * enqueue its chunks. Throws SweepInputError (with `field`) for bad input. If the queue is not
- * reachable right now the sweep stays 'queued' and is enqueued by the next reconciliation.
+ * enqueue its chunks. Throws SweepInputError (with `field`) for bad input, and with status 429
+ * when the sweep would pass a queued-simulation cap (admission.ts). If the queue is not reachable
+ * right now the sweep stays 'queued' and is enqueued by the next reconciliation.
  */
 export async function createSweep(programId: number, userId: string | null, body: unknown): Promise<Sweep> {
 	const req = parseSweepRequest(body);
@@ -105,8 +107,9 @@ export async function createSweep(programId: number, userId: string | null, body
 	const chunkSize = req.chunkSize ?? defaultChunkSize(sims);
 	const chunkCount = chunkTasks(def, chunkSize).length;
 	const points = gridSize(def);
-	const sweep = await serialized(() =>
-		Sweep.create({
+	const sweep = await serialized(async () => {
+		await assertQueueRoom(programId, userId, sims);
+		return Sweep.create({
 			program_id: programId,
 			name: req.name ?? `${points} strategies × ${expandScenarios(def).length} scenarios, ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC`,
 			status: 'queued',
@@ -119,8 +122,8 @@ export async function createSweep(programId: number, userId: string | null, body
 			grid_points: points,
 			simulation_count: sims,
 			created_by: userId
-		})
-	);
+		});
+	});
 	const queue = activeQueue();
 	if (queue) {
 		try {
@@ -132,8 +135,12 @@ export async function createSweep(programId: number, userId: string | null, body
 	return sweep;
 }
 
+/** Every chunk, each behind the chunks its program already has waiting (fair order, admission.ts). */
 async function enqueueAllChunks(sweep: Sweep, queue: SweepQueue): Promise<void> {
-	for (let i = 0; i < sweep.chunk_count; i++) await queue.addChunk(chunkJobData(sweep, i));
+	const backlog = await programBacklogChunks(sweep.program_id, sweep.id);
+	const chunks = [];
+	for (let i = 0; i < sweep.chunk_count; i++) chunks.push({ data: chunkJobData(sweep, i), priority: chunkPriority(backlog, i) });
+	await queue.addChunks(chunks);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -477,7 +484,11 @@ export async function settleDigests(): Promise<void> {
 
 const ACTIVE = new Set<SweepStatus>(ACTIVE_SWEEP_STATUSES);
 
-/** Engineer's cancel. Returns false if the sweep had already ended. */
+/**
+ * Engineer's cancel. Returns false if the sweep had already ended. Answers as soon as the sweep is
+ * marked cancelled in the database (results that arrive later are discarded); telling workers and
+ * removing the queued chunks happens in the background, however many chunks there are.
+ */
 export async function cancelSweep(sweepId: number): Promise<boolean> {
 	const changed = await serialized(async () => {
 		const [n] = await Sweep.update(
@@ -486,8 +497,21 @@ export async function cancelSweep(sweepId: number): Promise<boolean> {
 		);
 		return n > 0;
 	});
-	if (changed) await withdrawJobs(sweepId);
+	if (changed) inBackground(withdrawJobs(sweepId));
 	return changed;
+}
+
+const background = new Set<Promise<void>>();
+
+function inBackground(p: Promise<void>): void {
+	const tracked = p.catch((e) => log(`background work failed: ${(e as Error)?.message}`));
+	background.add(tracked);
+	void tracked.finally(() => background.delete(tracked));
+}
+
+/** Resolves when background withdrawals started so far are done (tests, shutdown). */
+export async function settleWithdrawals(): Promise<void> {
+	while (background.size) await Promise.all([...background]);
 }
 
 /** Mark the sweep failed with a reason the engineer can act on, and withdraw its queued jobs. */
@@ -520,12 +544,12 @@ async function withdrawJobs(sweepId: number): Promise<void> {
 	}
 }
 
-/** Remove chunk jobs that are not running (waiting, delayed, completed, failed). */
+/** Remove chunk jobs that are not running (waiting, prioritized, delayed, completed, failed), 100 at a time. */
 async function removeChunkJobs(sweep: Sweep, queue: SweepQueue): Promise<void> {
-	for (let i = 0; i < sweep.chunk_count; i++) {
-		const id = chunkJobId(sweep.id, sweep.queue_token, i);
-		await queue.removeJob(id);
-		clearProgress(id);
+	for (let start = 0; start < sweep.chunk_count; start += 100) {
+		const ids: string[] = [];
+		for (let i = start; i < Math.min(start + 100, sweep.chunk_count); i++) ids.push(chunkJobId(sweep.id, sweep.queue_token, i));
+		await Promise.all(ids.map((id) => queue.removeJob(id).then(() => clearProgress(id))));
 	}
 }
 
@@ -648,7 +672,7 @@ export async function reconcileSweeps(queue: SweepQueue): Promise<ReconcileRepor
 					if (await SweepChunk.count({ where: { sweep_id: sweep.id, chunk_index: i } })) return false;
 					const current = await Sweep.findByPk(sweep.id, { attributes: ['status'] });
 					if (!current || (current.status !== 'queued' && current.status !== 'running')) return false;
-					await queue.addChunk(chunkJobData(sweep, i));
+					await queue.addChunk(chunkJobData(sweep, i), chunkPriority(await programBacklogChunks(sweep.program_id, sweep.id), i));
 					return true;
 				});
 				if (added) report.requeued++;

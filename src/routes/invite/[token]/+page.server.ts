@@ -1,10 +1,9 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
-import { Invitation, User } from '$lib/server/db/models/index';
-import { findOpenInvitation } from '$lib/server/auth/users';
+import { User } from '$lib/server/db/models/index';
+import { acceptInvitation, findOpenInvitation } from '$lib/server/auth/users';
 import { hashPassword, passwordProblem } from '$lib/server/auth/password';
 import { lucia } from '$lib/server/auth/lucia';
-import { sequelize } from '$lib/server/db/index';
 
 export const load: PageServerLoad = async ({ params }) => {
 	const inv = await findOpenInvitation(params.token);
@@ -29,10 +28,7 @@ export const actions: Actions = {
 		if (problem) return fail(400, { message: problem });
 		if (password !== confirm) return fail(400, { message: 'The two passwords differ; type the same one twice.' });
 		const passwordHash = await hashPassword(password);
-		await sequelize.transaction(async (transaction) => {
-			await User.update({ password_hash: passwordHash }, { where: { id: inv.user_id }, transaction });
-			await Invitation.update({ used_at: Date.now() }, { where: { token_hash: inv.token_hash }, transaction });
-		});
+		if (!(await acceptInvitation(inv, passwordHash))) return fail(404, { message: 'This invitation link is unknown, used or expired.' });
 		const session = await lucia.createSession(inv.user_id, {});
 		const cookie = lucia.createSessionCookie(session.id);
 		cookies.set(cookie.name, cookie.value, { path: '.', ...cookie.attributes });

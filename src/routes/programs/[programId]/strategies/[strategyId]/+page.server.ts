@@ -3,7 +3,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { roleCan } from '$lib/server/auth/roles';
 import { Strategy, User, STRATEGY_STATES, type StrategyState } from '$lib/server/db/models/index';
-import { addComment, assertMoveAllowed, changeState, cleanText, MAX_COMMENT_CHARS, STATE_LABEL, StrategyError, thread, TRANSITIONS } from '$lib/server/strategies';
+import { addComment, assertMoveAllowed, changeState, cleanText, MAX_COMMENT_CHARS, movesFor, STATE_LABEL, StrategyError, thread } from '$lib/server/strategies';
 
 async function strategyOf(programId: number, raw: string) {
 	const s = await Strategy.findOne({ where: { id: parseId(raw, 'strategy'), program_id: programId } });
@@ -12,7 +12,7 @@ async function strategyOf(programId: number, raw: string) {
 }
 
 export const load: PageServerLoad = async ({ locals, params }) => {
-	const { program } = await requireProgramRole(locals, params.programId, 'read');
+	const { program, user } = await requireProgramRole(locals, params.programId, 'read');
 	const s = await strategyOf(program.id, params.strategyId);
 	const proposer = await User.findByPk(s.created_by);
 	return {
@@ -28,7 +28,7 @@ export const load: PageServerLoad = async ({ locals, params }) => {
 			createdAt: s.created_at.toISOString()
 		},
 		stateLabel: STATE_LABEL,
-		moves: TRANSITIONS.filter((t) => t.from === s.state).map((t) => ({ to: t.to, verb: t.verb, need: t.need })),
+		moves: movesFor(s, user.id).map((t) => ({ to: t.to, verb: t.verb, need: t.need })),
 		thread: await thread(s.id),
 		maxComment: MAX_COMMENT_CHARS
 	};
@@ -61,7 +61,7 @@ export const actions: Actions = {
 		const to = String(form.get('to') ?? '');
 		if (!(STRATEGY_STATES as readonly string[]).includes(to)) return fail(400, { field: 'to', message: `Unknown state “${to.slice(0, 30)}”.` });
 		try {
-			assertMoveAllowed(s, to as StrategyState, capabilities(role));
+			assertMoveAllowed(s, to as StrategyState, capabilities(role), user.id);
 			const note = cleanText(form.get('note'), 'note', MAX_COMMENT_CHARS, false);
 			await changeState(s, to as StrategyState, user.id, note, capabilities(role));
 			return { done: `Strategy is now ${STATE_LABEL[to as StrategyState].toLowerCase()}.` };

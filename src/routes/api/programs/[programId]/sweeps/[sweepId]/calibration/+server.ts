@@ -20,7 +20,7 @@ export const GET: RequestHandler = ({ locals, params, url }) =>
 		let rule: CalibrationRule;
 		if (ruleName === 'knee') rule = { kind: 'knee' };
 		else if (ruleName === 'fastest-within') {
-			const budget = numberParam(url, 'fastestWithinEnergy_Wh') ?? sweep.rule_max_energy_Wh ?? undefined;
+			const budget = numberParam(url, 'fastestWithinEnergy_Wh', { min: 0 }) ?? sweep.rule_max_energy_Wh ?? undefined;
 			if (budget === undefined)
 				throw new SweepInputError('rule=fastest-within needs an energy budget: add fastestWithinEnergy_Wh=… (watt-hours).', 'fastestWithinEnergy_Wh');
 			rule = { kind: 'fastest-within', maxEnergy_Wh: budget };

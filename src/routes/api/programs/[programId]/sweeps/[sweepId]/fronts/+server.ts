@@ -13,6 +13,6 @@ export const GET: RequestHandler = ({ locals, params, url }) =>
 	apiHandler(async () => {
 		const { program } = await requireProgramRole(locals, params.programId, 'read');
 		const sweep = await getProgramSweep(program.id, params.sweepId);
-		const budget = numberParam(url, 'fastestWithinEnergy_Wh');
+		const budget = numberParam(url, 'fastestWithinEnergy_Wh', { min: 0 });
 		return json(await sweepFronts(sweep, { fastestWithinEnergy_Wh: budget }));
 	});

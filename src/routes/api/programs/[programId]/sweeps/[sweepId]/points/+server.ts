@@ -1,6 +1,7 @@
 /**
  * GET /api/programs/:programId/sweeps/:sweepId/points[?scenario=0&front=1&limit=1000&offset=0]
- * → { total, points: PointView[] } (each with the engine's full summary).
+ * → { total, points: PointView[] } (each with the engine's full summary). limit is 1 to 5000
+ * (default 1000); page through larger sweeps with offset.
  */
 import { json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
@@ -8,6 +9,9 @@ import { requireProgramRole } from '$lib/server/auth/guard';
 import { apiHandler, numberParam } from '$lib/server/sweeps/api';
 import { SweepInputError } from '$lib/server/sweeps/request';
 import { getProgramSweep, sweepPoints } from '$lib/server/sweeps/results';
+
+/** Largest page: about 5 MB of JSON; the sweep page reads one page of this size. */
+const MAX_PAGE = 5000;
 
 export const GET: RequestHandler = ({ locals, params, url }) =>
 	apiHandler(async () => {
@@ -20,8 +24,8 @@ export const GET: RequestHandler = ({ locals, params, url }) =>
 			await sweepPoints(sweep, {
 				scenarioIndex: numberParam(url, 'scenario', { integer: true, min: 0 }),
 				frontOnly: front === '1' || front === 'true',
-				limit: numberParam(url, 'limit', { integer: true, min: 1 }),
-				offset: numberParam(url, 'offset', { integer: true, min: 0 })
+				limit: numberParam(url, 'limit', { integer: true, min: 1, max: MAX_PAGE }),
+				offset: numberParam(url, 'offset', { integer: true, min: 0, max: Number.MAX_SAFE_INTEGER })
 			})
 		);
 	});

@@ -23,8 +23,8 @@
  *
  * Step length: one control period (1 s) where things change, up to 32 on
  * smooth stretches (adaptive, on by default). The next step doubles while the
- * limit in force stays the same and the current moves less than 0.1 % of its
- * scale per step, halves when it moves more than 0.4 %, and a step in which
+ * limit in force stays the same and the current moves less than 0.03 % of its
+ * scale per step, halves when it moves more than 0.12 %, and a step in which
  * the limit in force switches is taken again at one control period, so a
  * switch is located to within one period. Accuracy against one-period steps
  * throughout (time to target, energy, anode margin) is checked in tests.
@@ -157,7 +157,7 @@ const SOLVER_TOL = 1e-4;
 /** Iteration caps; a cap that binds is counted and reported as a note. */
 const DRIVE_ITERATIONS = 20;
 const SOLVER_ITERATIONS = 50;
-/** Adaptive charging steps: longest step in control periods (2^5) and the current-change band per step. */
+/** Adaptive charging steps: longest step 2^5 control periods; the current-change band per step that grows or shrinks it. */
 const MAX_STEP_LEVEL = 5;
 const STEP_GROW_BELOW = 0.0003;
 const STEP_SHRINK_ABOVE = 0.0012;

@@ -5,7 +5,11 @@
  * What "consistent" means here: a chunk's points, its receipt and the sweep's counters are written
  * in one transaction, so in any consistent snapshot sweeps.simulations_done equals the number of
  * stored points and chunks_done the number of receipts. A torn copy (pages from before and after a
- * commit) would break that. Several backups are taken while chunks are being stored.
+ * commit) would break that.
+ *
+ * The sweep runs behind the chunk gate, so the backups land mid-way on purpose, not by luck: one
+ * while the sweep is held after 2 of its 38 chunks, two while chunks 3 to 12 are being stored (the
+ * gate holds chunk 13, so the sweep cannot finish under them), one while it runs to its end.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
@@ -14,14 +18,16 @@ import os from 'node:os';
 import path from 'node:path';
 import sqlite3 from 'sqlite3';
 import { ROOT, startApp, type RunningApp } from '../helpers/app';
+import { ChunkGate } from '../helpers/chunk-gate';
 import { databaseChecksum, queryDb } from '../helpers/db-checksum';
 import { DEMO, lookUpIds, seedHardening, signedIn, type Ids } from './helpers';
 
 const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
 const work = fs.mkdtempSync(path.join(os.tmpdir(), 'paretherm-backup-test-'));
+const gate = ChunkGate.create(2, work);
 
 function npmScript(script: 'backup' | 'restore', args: string[], dataDir: string) {
-	const r = spawnSync(TSX, [`scripts/${script}.ts`, ...args], { cwd: ROOT, env: { ...process.env, PARETHERM_DATA_DIR: dataDir }, encoding: 'utf8', timeout: 60_000 });
+	const r = spawnSync(TSX, [`scripts/${script}.ts`, ...args], { cwd: ROOT, env: { ...process.env, PARETHERM_DATA_DIR: dataDir }, encoding: 'utf8', timeout: 120_000 });
 	return { code: r.status, out: `${r.stdout}${r.stderr}` };
 }
 
@@ -61,7 +67,7 @@ let finishedFronts: string;
 const backups: { file: string; before: Counters; after: Counters }[] = [];
 
 beforeAll(async () => {
-	app = await startApp({ dataDir: seedHardening(), seed: false, env: { PARETHERM_WORKER_THREADS: '1' } });
+	app = await startApp({ dataDir: seedHardening(), seed: false, env: { PARETHERM_WORKER_THREADS: '1', ...gate.env } });
 	ids = await lookUpIds(app);
 	const engineer = await signedIn(app, DEMO.engineer);
 	finishedFronts = await (await engineer.get(`/api/programs/${ids.programId}/sweeps/${ids.sweepId}/fronts`)).text();
@@ -74,30 +80,47 @@ beforeAll(async () => {
 	});
 	expect(res.status).toBe(201);
 	running = (await res.json()).id;
-}, 240_000);
+}, 300_000);
 
 afterAll(async () => {
+	gate.open();
 	await app?.stop();
 	fs.rmSync(work, { recursive: true, force: true });
 });
 
 describe('backup while the app runs', () => {
 	it('should take consistent snapshots while a sweep stores its chunks', async () => {
-		const deadline = Date.now() + 120_000;
-		while ((await counters(app.dataDir, running)).chunks_done < 2) {
-			if (Date.now() > deadline) throw new Error('the sweep stored nothing within 120 s');
-			await new Promise((r) => setTimeout(r, 100));
-		}
-		for (let i = 0; i < 4; i++) {
+		const chunksStored = async (n: number) => {
+			const deadline = Date.now() + 240_000; // a bound for a broken sweep, not a race: the gate holds it at n
+			while ((await counters(app.dataDir, running)).chunks_done < n) {
+				if (Date.now() > deadline) throw new Error(`the sweep did not store ${n} chunks within 240 s:\n${app.log()}`);
+				await new Promise((r) => setTimeout(r, 100));
+			}
+		};
+		const backup = (i: number) => {
 			const file = path.join(work, `backup-${i}.sqlite`);
-			const before = await counters(app.dataDir, running);
-			const r = npmScript('backup', ['--out', file], app.dataDir);
-			const after = await counters(app.dataDir, running);
-			expect(r.code, r.out).toBe(0);
-			expect(r.out).toContain(`Backup written: ${file}`);
-			backups.push({ file, before, after });
-			await new Promise((res) => setTimeout(res, 300));
-		}
+			return async () => {
+				const before = await counters(app.dataDir, running);
+				const r = npmScript('backup', ['--out', file], app.dataDir);
+				const after = await counters(app.dataDir, running);
+				expect(r.code, r.out).toBe(0);
+				expect(r.out).toContain(`Backup written: ${file}`);
+				backups.push({ file, before, after });
+			};
+		};
+		// Held after 2 chunks: nothing is written while this backup runs.
+		await chunksStored(2);
+		await backup(0)();
+		expect(backups[0].before.chunks_done).toBe(2);
+		expect(backups[0].after.chunks_done).toBe(2);
+		// Chunks 3 to 12 are stored while these two run; the gate holds the sweep before its end.
+		gate.allow(12);
+		await backup(1)();
+		await backup(2)();
+		// Released: the last one runs while the sweep goes on to its end (mid-way or not, it must be consistent).
+		gate.open();
+		await backup(3)();
+
 		let midway = 0;
 		for (const b of backups) {
 			const view = asDataDir(b.file);
@@ -114,9 +137,10 @@ describe('backup while the app runs', () => {
 			// No WAL beside a backup: it is one self-contained file.
 			expect(fs.existsSync(`${b.file}-wal`)).toBe(false);
 		}
-		// At least one backup caught the sweep mid-way, with some chunks stored (the point of the exercise).
-		expect(midway).toBeGreaterThan(0);
-	}, 180_000);
+		// The backups caught the sweep mid-way, with some chunks stored (the point of the exercise):
+		// at least the three taken while the gate held its end back.
+		expect(midway).toBeGreaterThanOrEqual(3);
+	}, 420_000);
 
 	it('should refuse to restore into the data folder of the running app', () => {
 		const r = npmScript('restore', [backups[0].file], app.dataDir);
@@ -160,11 +184,11 @@ describe('restore', () => {
 		try {
 			const engineer = await signedIn(restoredApp, DEMO.engineer);
 			expect(await (await engineer.get(`/api/programs/${ids.programId}/sweeps/${ids.sweepId}/fronts`)).text()).toBe(finishedFronts);
-			const deadline = Date.now() + 150_000;
+			const deadline = Date.now() + 300_000;
 			let c = await counters(restoredDir, running);
 			while (c.status !== 'done') {
 				if (c.status === 'failed' || c.status === 'cancelled') throw new Error(`restored sweep ended ${c.status}`);
-				if (Date.now() > deadline) throw new Error(`restored sweep still ${c.status} after 150 s (${c.points} points)`);
+				if (Date.now() > deadline) throw new Error(`restored sweep still ${c.status} after 300 s (${c.points} points)`);
 				await new Promise((r) => setTimeout(r, 250));
 				c = await counters(restoredDir, running);
 			}
@@ -178,7 +202,7 @@ describe('restore', () => {
 		} finally {
 			await restoredApp.stop();
 		}
-	}, 240_000);
+	}, 420_000);
 
 	it('should keep the replaced database as .before-restore', async () => {
 		const target = seedHardening(fs.mkdtempSync(path.join(work, 'replaced-')), { sweeps: false });

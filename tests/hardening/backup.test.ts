@@ -12,12 +12,11 @@
  * gate holds chunk 13, so the sweep cannot finish under them), one while it runs to its end.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import sqlite3 from 'sqlite3';
-import { ROOT, startApp, type RunningApp } from '../helpers/app';
+import { ROOT, runChild, startApp, type RunningApp } from '../helpers/app';
 import { ChunkGate } from '../helpers/chunk-gate';
 import { databaseChecksum, queryDb } from '../helpers/db-checksum';
 import { DEMO, lookUpIds, seedHardening, signedIn, type Ids } from './helpers';
@@ -27,8 +26,7 @@ const work = fs.mkdtempSync(path.join(os.tmpdir(), 'paretherm-backup-test-'));
 const gate = ChunkGate.create(2, work);
 
 function npmScript(script: 'backup' | 'restore', args: string[], dataDir: string) {
-	const r = spawnSync(TSX, [`scripts/${script}.ts`, ...args], { cwd: ROOT, env: { ...process.env, PARETHERM_DATA_DIR: dataDir }, encoding: 'utf8', timeout: 120_000 });
-	return { code: r.status, out: `${r.stdout}${r.stderr}` };
+	return runChild(TSX, [`scripts/${script}.ts`, ...args], { env: { ...process.env, PARETHERM_DATA_DIR: dataDir }, timeout_ms: 180_000 });
 }
 
 /** A data folder holding `file` as its database, to read a backup with the usual helpers. */
@@ -67,7 +65,7 @@ let finishedFronts: string;
 const backups: { file: string; before: Counters; after: Counters }[] = [];
 
 beforeAll(async () => {
-	app = await startApp({ dataDir: seedHardening(), seed: false, env: { PARETHERM_WORKER_THREADS: '1', ...gate.env } });
+	app = await startApp({ dataDir: await seedHardening(), seed: false, env: { PARETHERM_WORKER_THREADS: '1', ...gate.env } });
 	ids = await lookUpIds(app);
 	const engineer = await signedIn(app, DEMO.engineer);
 	finishedFronts = await (await engineer.get(`/api/programs/${ids.programId}/sweeps/${ids.sweepId}/fronts`)).text();
@@ -101,7 +99,7 @@ describe('backup while the app runs', () => {
 			const file = path.join(work, `backup-${i}.sqlite`);
 			return async () => {
 				const before = await counters(app.dataDir, running);
-				const r = npmScript('backup', ['--out', file], app.dataDir);
+				const r = await npmScript('backup', ['--out', file], app.dataDir);
 				const after = await counters(app.dataDir, running);
 				expect(r.code, r.out).toBe(0);
 				expect(r.out).toContain(`Backup written: ${file}`);
@@ -142,8 +140,8 @@ describe('backup while the app runs', () => {
 		expect(midway).toBeGreaterThanOrEqual(3);
 	}, 420_000);
 
-	it('should refuse to restore into the data folder of the running app', () => {
-		const r = npmScript('restore', [backups[0].file], app.dataDir);
+	it('should refuse to restore into the data folder of the running app', async () => {
+		const r = await npmScript('restore', [backups[0].file], app.dataDir);
 		expect(r.code).toBe(1);
 		expect(r.out).toMatch(/is open in pid \d+|redis-server \(pid \d+\) is running/);
 		expect(fs.existsSync(path.join(app.dataDir, 'paretherm.sqlite.before-restore'))).toBe(false);
@@ -158,7 +156,7 @@ describe('restore', () => {
 		// The backup that caught the sweep furthest from its end, so the restored app has work left.
 		chosen = [...backups].sort((a, b) => a.before.points - b.before.points)[0];
 		restoredDir = fs.mkdtempSync(path.join(work, 'restored-'));
-		const r = npmScript('restore', [chosen.file], restoredDir);
+		const r = await npmScript('restore', [chosen.file], restoredDir);
 		expect(r.code, r.out).toBe(0);
 		expect(r.out).toContain('Restored');
 		expect(await databaseChecksum(restoredDir)).toBe(await databaseChecksum(asDataDir(chosen.file)));
@@ -205,9 +203,9 @@ describe('restore', () => {
 	}, 420_000);
 
 	it('should keep the replaced database as .before-restore', async () => {
-		const target = seedHardening(fs.mkdtempSync(path.join(work, 'replaced-')), { sweeps: false });
+		const target = await seedHardening(fs.mkdtempSync(path.join(work, 'replaced-')), { sweeps: false });
 		const old = await databaseChecksum(target);
-		const r = npmScript('restore', [backups[0].file], target);
+		const r = await npmScript('restore', [backups[0].file], target);
 		expect(r.code, r.out).toBe(0);
 		expect(r.out).toContain('paretherm.sqlite.before-restore');
 		expect(await databaseChecksum(asDataDir(path.join(target, 'paretherm.sqlite.before-restore')))).toBe(old);
@@ -219,7 +217,7 @@ describe('restore', () => {
 			const target = fs.mkdtempSync(path.join(work, 'refuse-'));
 			const notSqlite = path.join(work, 'notes.txt');
 			fs.writeFileSync(notSqlite, 'not a database');
-			let r = npmScript('restore', [notSqlite], target);
+			let r = await npmScript('restore', [notSqlite], target);
 			expect(r.code).toBe(1);
 			expect(r.out).toContain('not an SQLite database');
 
@@ -228,25 +226,25 @@ describe('restore', () => {
 				const db = new sqlite3.Database(otherSqlite);
 				db.exec('CREATE TABLE t (x INTEGER); INSERT INTO t VALUES (1);', (err) => db.close(() => (err ? reject(err) : resolve())));
 			});
-			r = npmScript('restore', [otherSqlite], target);
+			r = await npmScript('restore', [otherSqlite], target);
 			expect(r.code).toBe(1);
 			expect(r.out).toContain('not a Paretherm one (it has no schema_migrations table)');
 
 			const truncated = path.join(work, 'truncated.sqlite');
 			const bytes = fs.readFileSync(backups[0].file);
 			fs.writeFileSync(truncated, bytes.subarray(0, Math.floor(bytes.length / 3)));
-			r = npmScript('restore', [truncated], target);
+			r = await npmScript('restore', [truncated], target);
 			expect(r.code).toBe(1);
 			expect(r.out).toMatch(/damaged|malformed|not a database|disk image/i);
 
-			r = npmScript('restore', [path.join(work, 'missing.sqlite')], target);
+			r = await npmScript('restore', [path.join(work, 'missing.sqlite')], target);
 			expect(r.code).toBe(1);
 			expect(r.out).toContain('No file at');
 			expect(fs.readdirSync(target)).toEqual([]);
 		});
 
-		it('should never overwrite an existing backup', () => {
-			const r = npmScript('backup', ['--out', backups[0].file], app.dataDir);
+		it('should never overwrite an existing backup', async () => {
+			const r = await npmScript('backup', ['--out', backups[0].file], app.dataDir);
 			expect(r.code).toBe(1);
 			expect(r.out).toContain('exists already');
 		});

@@ -212,7 +212,7 @@ const computedBy = (out: string, id: number) => [...out.matchAll(new RegExp(`swe
 beforeAll(async () => {
 	await startRedis();
 	await startSmtp();
-	dataDir = seedHardening(fs.mkdtempSync(path.join(work, 'data-')));
+	dataDir = await seedHardening(fs.mkdtempSync(path.join(work, 'data-')));
 	app = await startWeb();
 	ids = await lookUpIds(app);
 	// Three digest recipients: the manager (subscribed by the seed), the engineer and the architect.

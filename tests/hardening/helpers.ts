@@ -25,13 +25,13 @@ export interface Ids {
 	otherStrategyId: number;
 }
 
-export function seedHardening(dataDir = tempDataDir('paretherm-hardening-'), opts: { sweeps?: boolean } = {}): string {
-	seed(dataDir, 'tests/hardening/fixtures/seed.ts', { HARDENING_SEED_SWEEPS: opts.sweeps === false ? '0' : '1' });
+export async function seedHardening(dataDir = tempDataDir('paretherm-hardening-'), opts: { sweeps?: boolean } = {}): Promise<string> {
+	await seed(dataDir, 'tests/hardening/fixtures/seed.ts', { HARDENING_SEED_SWEEPS: opts.sweeps === false ? '0' : '1' });
 	return dataDir;
 }
 
 export async function startHardenedApp(opts: { env?: Record<string, string>; dataDir?: string } = {}): Promise<RunningApp> {
-	const dataDir = opts.dataDir ?? seedHardening();
+	const dataDir = opts.dataDir ?? (await seedHardening());
 	return startApp({ dataDir, seed: false, env: opts.env });
 }
 

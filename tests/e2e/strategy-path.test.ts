@@ -119,7 +119,7 @@ describe('from scenario to endorsed strategy', () => {
 			const strategyPath = new URL(strategyUrl).pathname;
 			pages = ['', '/inputs', '/inputs/1', '/sweeps', '/strategies', '/calibration', '/sweeps/new'].map((p) => programPath + p);
 			pages.push(sweepPath, pointPath, strategyPath);
-		}, 180_000);
+		}, 300_000);
 
 		// One test per role, each with its own budget: a slow machine slows every role alike.
 		for (const who of ['engineer', 'architect', 'manager', 'viewer', 'admin'] as const) {

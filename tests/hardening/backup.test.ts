@@ -210,7 +210,7 @@ describe('restore', () => {
 		expect(r.out).toContain('paretherm.sqlite.before-restore');
 		expect(await databaseChecksum(asDataDir(path.join(target, 'paretherm.sqlite.before-restore')))).toBe(old);
 		expect(await databaseChecksum(target)).toBe(await databaseChecksum(asDataDir(backups[0].file)));
-	}, 120_000);
+	}, 240_000);
 
 	describe('error handling', () => {
 		it('should refuse a file that is not a Paretherm database and change nothing', async () => {

@@ -135,7 +135,7 @@ describe('markup typed by people is served as text', () => {
 		} finally {
 			await browser.close();
 		}
-	}, 120_000);
+	}, 240_000);
 });
 
 describe('security headers', () => {
@@ -200,7 +200,7 @@ describe('security headers', () => {
 		} finally {
 			await browser.close();
 		}
-	}, 120_000);
+	}, 240_000);
 });
 
 describe('origin check on form actions', () => {
@@ -227,7 +227,7 @@ describe('origin check on form actions', () => {
 		expect(problems).toEqual([]);
 		// Sessions are skipped only because a refused request may still refresh its caller's expiry.
 		expect(await databaseChecksum(app.dataDir, ['sessions'])).toBe(before);
-	}, 120_000);
+	}, 240_000);
 });
 
 describe('session cookie', () => {
@@ -257,7 +257,7 @@ describe('session cookie', () => {
 		} finally {
 			await https.stop();
 		}
-	}, 120_000);
+	}, 240_000);
 });
 
 describe('sign-in throttling', () => {
@@ -276,7 +276,7 @@ describe('sign-in throttling', () => {
 		} finally {
 			await own.stop();
 		}
-	}, 120_000);
+	}, 240_000);
 });
 
 describe('no secrets in responses or the log', () => {
@@ -323,5 +323,5 @@ describe('no secrets in responses or the log', () => {
 		for (const p of patterns) expect(log).not.toMatch(p);
 		for (const s of [...secrets, inviteToken]) expect(log.includes(s), `log holds a secret (${s.slice(0, 6)}…)`).toBe(false);
 		expect(log).not.toMatch(/unexpected error/);
-	}, 180_000);
+	}, 300_000);
 });

@@ -31,11 +31,11 @@ describe('demo seed', () => {
 		expect(scenarios.length).toBeGreaterThan(1);
 		for (const s of scenarios) expect(JSON.parse(s.front_point_ids).length).toBeGreaterThan(0);
 		expect(scenarios.some((s) => s.knee_point_id !== null)).toBe(true);
-	}, 180_000);
+	}, 300_000);
 
 	it('should change nothing when run again', async () => {
 		const before = await databaseChecksum(dataDir);
 		await seed(dataDir, 'scripts/seed.ts', { PARETHERM_SEED_SWEEP: '1' });
 		expect(await databaseChecksum(dataDir)).toBe(before);
-	}, 180_000);
+	}, 300_000);
 });

@@ -165,5 +165,5 @@ describe('sweep queue with two worker processes', () => {
 		const codes = await Promise.all(workers.map((w) => w.exit));
 		expect(codes).toEqual([0, 0]);
 		for (const w of workers) expect(w.out).toMatch(/SIGTERM: finishing running chunks/);
-	}, 120_000);
+	}, 240_000);
 });

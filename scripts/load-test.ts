@@ -1,9 +1,10 @@
 /**
- * `npm run load [-- --connections 50 --duration 20]`: a bounded load test on loopback.
+ * `npm run load [-- --connections 50 --duration 20 | --requests 5000]`: a bounded load test on loopback.
  *
  * Starts the BUILT app (`npm run build` first) on 127.0.0.1 with a fresh data folder seeded with
  * the demo (including its finished sweep), signs in as the demo engineer, queues a sweep, and while
- * that sweep runs lets `connections` concurrent users read, for `duration` seconds, round robin:
+ * that sweep runs lets `connections` concurrent users read, for `duration` seconds (or until
+ * `requests` answers), round robin:
  * the running sweep's page, its progress JSON, the finished sweep's fronts and points JSON, and the
  * running sweep's points. Prints throughput, latency percentiles (p95 computed from every
  * response), status codes and errors; exits 1 on any error or non-2xx answer.
@@ -11,7 +12,7 @@
  * Speed figures live here and in `npm run bench`, never in tests; tests/hardening/load.test.ts runs
  * a small version and asserts only "no errors, no 5xx".
  */
-import { spawn, execFileSync, type ChildProcess } from 'node:child_process';
+import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
@@ -25,7 +26,14 @@ const PASSWORD = 'demo-paretherm-2026';
 
 export interface LoadOptions {
 	connections: number;
-	duration_s: number;
+	/** How long the readers read … */
+	duration_s?: number;
+	/** … or how many requests they send in all (takes precedence over duration_s). */
+	requests?: number;
+	/** Simulations per chunk of the running sweep (default: the service's choice). */
+	sweepChunkSize?: number;
+	/** Extra environment for the app process. */
+	appEnv?: Record<string, string>;
 	/** Grid of the sweep that runs during the load: lead times × set-points per scenario. */
 	sweepLeadTimes_s?: number[];
 	/** Print progress lines (the CLI does; the test does not). */
@@ -70,11 +78,19 @@ export async function runLoad(opts: LoadOptions): Promise<LoadReport> {
 	let output = '';
 	try {
 		log(`seeding the demo into ${dataDir} …`);
-		execFileSync(path.join(ROOT, 'node_modules/.bin/tsx'), ['scripts/seed.ts'], { cwd: ROOT, env: { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_BCRYPT_COST: '4' }, stdio: 'pipe' });
+		// Not execFileSync: a caller's event loop (a test runner's worker) must stay free while the demo seeds.
+		await new Promise<void>((resolve, reject) => {
+			const child = spawn(path.join(ROOT, 'node_modules/.bin/tsx'), ['scripts/seed.ts'], { cwd: ROOT, env: { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_BCRYPT_COST: '4' }, stdio: ['ignore', 'pipe', 'pipe'] });
+			let seedOutput = '';
+			child.stdout!.on('data', (d) => (seedOutput += d));
+			child.stderr!.on('data', (d) => (seedOutput += d));
+			child.once('error', reject);
+			child.once('close', (code) => (code === 0 ? resolve() : reject(new Error(`seeding the demo failed (exit ${code}):\n${seedOutput}`))));
+		});
 
 		const port = await freePort();
 		const base = `http://127.0.0.1:${port}`;
-		const env: NodeJS.ProcessEnv = { ...process.env, PARETHERM_DATA_DIR: dataDir, PORT: String(port), HOST: '127.0.0.1', ORIGIN: base, PARETHERM_BCRYPT_COST: '4' };
+		const env: NodeJS.ProcessEnv = { ...process.env, PARETHERM_DATA_DIR: dataDir, PORT: String(port), HOST: '127.0.0.1', ORIGIN: base, PARETHERM_BCRYPT_COST: '4', ...opts.appEnv };
 		delete env.REDIS_URL; // the newcomer's set-up: private redis-server, in-process worker
 		app = spawn(process.execPath, ['scripts/start.js'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
 		app.stdout!.on('data', (d) => (output += d));
@@ -112,6 +128,7 @@ export async function runLoad(opts: LoadOptions): Promise<LoadReport> {
 			body: JSON.stringify({
 				name: 'Load-test sweep',
 				scenarioId: 'cold-morning-depot',
+				...(opts.sweepChunkSize ? { chunkSize: opts.sweepChunkSize } : {}),
 				definition: {
 					cellIds: ['demo-nmc-pouch'],
 					packIds: ['demo-van-pack'],
@@ -135,13 +152,15 @@ export async function runLoad(opts: LoadOptions): Promise<LoadReport> {
 			`/api/programs/${programId}/sweeps/${finished.id}/points?limit=200`,
 			`/api/programs/${programId}/sweeps/${running}/points?limit=200`
 		];
-		log(`${opts.connections} connections for ${opts.duration_s} s on ${base}, sweep ${running} running (${before.status}, ${before.progress.percent} %) …`);
+		const duration_s = opts.duration_s ?? 20;
+		const bound = opts.requests ? `${opts.requests} requests` : `${duration_s} s`;
+		log(`${opts.connections} connections for ${bound} on ${base}, sweep ${running} running (${before.status}, ${before.progress.percent} %) …`);
 		const times: number[] = [];
 		const byPath = new Map<string, number[]>();
 		const instance = autocannon({
 			url: base,
 			connections: opts.connections,
-			duration: opts.duration_s,
+			...(opts.requests ? { amount: opts.requests } : { duration: duration_s }),
 			timeout: 30,
 			headers: { cookie },
 			requests: paths.map((p) => ({ method: 'GET' as const, path: p, headers: { cookie, accept: p.startsWith('/api/') ? 'application/json' : 'text/html' } }))
@@ -206,8 +225,9 @@ function arg(name: string, fallback: number): number {
 if (process.argv[1] && import.meta.url === pathToFileURL(path.resolve(process.argv[1])).href) {
 	const connections = Math.min(500, Math.round(arg('connections', 50)));
 	const duration_s = Math.min(600, arg('duration', 20));
+	const requests = process.argv.includes('--requests') ? Math.min(10_000_000, Math.round(arg('requests', 1))) : undefined;
 	try {
-		const r = await runLoad({ connections, duration_s, log: (m) => console.log(m), keepData: process.argv.includes('--keep') });
+		const r = await runLoad({ connections, duration_s, requests, log: (m) => console.log(m), keepData: process.argv.includes('--keep') });
 		const ms = (v: number) => `${v.toFixed(1)} ms`;
 		console.log('');
 		console.log(`Load: ${connections} connections, ${r.duration_s} s, loopback, sweep ${r.sweep.id} ${r.sweep.statusBefore} → ${r.sweep.statusAfter} (${r.sweep.percentAfter} %)`);

@@ -3,5 +3,6 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 bash scripts/setup.sh --with-browser
+npx svelte-kit sync
 npm run build
 npx vitest run "$@"

@@ -19,7 +19,7 @@ beforeAll(async () => {
 	app = await startApp();
 	session = await BrowserSession.open(app.url);
 	page = session.page;
-}, 180_000);
+}, 300_000);
 afterAll(async () => {
 	await session?.close();
 	await app?.stop();

@@ -12,7 +12,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Client, startApp, type RunningApp } from '../helpers/app';
 import { queryDb } from '../helpers/db-checksum';
-import { DEMO, DEMO_PASSWORD, OUTSIDER, lookUpIds, seedHardeningAsync, type Ids } from './helpers';
+import { DEMO, DEMO_PASSWORD, OUTSIDER, lookUpIds, seedHardening, type Ids } from './helpers';
 
 let app: RunningApp;
 let ids: Ids;
@@ -44,7 +44,7 @@ async function signedIn(email: string, password = DEMO_PASSWORD): Promise<From> 
 
 beforeAll(async () => {
 	app = await startApp({
-		dataDir: await seedHardeningAsync(),
+		dataDir: await seedHardening(),
 		seed: false,
 		// Waits long enough that no test outlives one by chance.
 		env: { PARETHERM_NO_RUNTIME: '1', ADDRESS_HEADER: 'x-forwarded-for', XFF_DEPTH: '1', PARETHERM_SIGNIN_FREE_FAILURES: '3', PARETHERM_SIGNIN_DELAY_S: '600' }

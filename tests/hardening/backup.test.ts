@@ -5,24 +5,28 @@
  * What "consistent" means here: a chunk's points, its receipt and the sweep's counters are written
  * in one transaction, so in any consistent snapshot sweeps.simulations_done equals the number of
  * stored points and chunks_done the number of receipts. A torn copy (pages from before and after a
- * commit) would break that. Several backups are taken while chunks are being stored.
+ * commit) would break that.
+ *
+ * The sweep runs behind the chunk gate, so the backups land mid-way on purpose, not by luck: one
+ * while the sweep is held after 2 of its 38 chunks, two while chunks 3 to 12 are being stored (the
+ * gate holds chunk 13, so the sweep cannot finish under them), one while it runs to its end.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import sqlite3 from 'sqlite3';
-import { ROOT, startApp, type RunningApp } from '../helpers/app';
+import { ROOT, runChild, startApp, type RunningApp } from '../helpers/app';
+import { ChunkGate } from '../helpers/chunk-gate';
 import { databaseChecksum, queryDb } from '../helpers/db-checksum';
 import { DEMO, lookUpIds, seedHardening, signedIn, type Ids } from './helpers';
 
 const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
 const work = fs.mkdtempSync(path.join(os.tmpdir(), 'paretherm-backup-test-'));
+const gate = ChunkGate.create(2, work);
 
 function npmScript(script: 'backup' | 'restore', args: string[], dataDir: string) {
-	const r = spawnSync(TSX, [`scripts/${script}.ts`, ...args], { cwd: ROOT, env: { ...process.env, PARETHERM_DATA_DIR: dataDir }, encoding: 'utf8', timeout: 60_000 });
-	return { code: r.status, out: `${r.stdout}${r.stderr}` };
+	return runChild(TSX, [`scripts/${script}.ts`, ...args], { env: { ...process.env, PARETHERM_DATA_DIR: dataDir }, timeout_ms: 180_000 });
 }
 
 /** A data folder holding `file` as its database, to read a backup with the usual helpers. */
@@ -61,7 +65,7 @@ let finishedFronts: string;
 const backups: { file: string; before: Counters; after: Counters }[] = [];
 
 beforeAll(async () => {
-	app = await startApp({ dataDir: seedHardening(), seed: false, env: { PARETHERM_WORKER_THREADS: '1' } });
+	app = await startApp({ dataDir: await seedHardening(), seed: false, env: { PARETHERM_WORKER_THREADS: '1', ...gate.env } });
 	ids = await lookUpIds(app);
 	const engineer = await signedIn(app, DEMO.engineer);
 	finishedFronts = await (await engineer.get(`/api/programs/${ids.programId}/sweeps/${ids.sweepId}/fronts`)).text();
@@ -74,30 +78,47 @@ beforeAll(async () => {
 	});
 	expect(res.status).toBe(201);
 	running = (await res.json()).id;
-}, 240_000);
+}, 300_000);
 
 afterAll(async () => {
+	gate.open();
 	await app?.stop();
 	fs.rmSync(work, { recursive: true, force: true });
 });
 
 describe('backup while the app runs', () => {
 	it('should take consistent snapshots while a sweep stores its chunks', async () => {
-		const deadline = Date.now() + 120_000;
-		while ((await counters(app.dataDir, running)).chunks_done < 2) {
-			if (Date.now() > deadline) throw new Error('the sweep stored nothing within 120 s');
-			await new Promise((r) => setTimeout(r, 100));
-		}
-		for (let i = 0; i < 4; i++) {
+		const chunksStored = async (n: number) => {
+			const deadline = Date.now() + 240_000; // a bound for a broken sweep, not a race: the gate holds it at n
+			while ((await counters(app.dataDir, running)).chunks_done < n) {
+				if (Date.now() > deadline) throw new Error(`the sweep did not store ${n} chunks within 240 s:\n${app.log()}`);
+				await new Promise((r) => setTimeout(r, 100));
+			}
+		};
+		const backup = (i: number) => {
 			const file = path.join(work, `backup-${i}.sqlite`);
-			const before = await counters(app.dataDir, running);
-			const r = npmScript('backup', ['--out', file], app.dataDir);
-			const after = await counters(app.dataDir, running);
-			expect(r.code, r.out).toBe(0);
-			expect(r.out).toContain(`Backup written: ${file}`);
-			backups.push({ file, before, after });
-			await new Promise((res) => setTimeout(res, 300));
-		}
+			return async () => {
+				const before = await counters(app.dataDir, running);
+				const r = await npmScript('backup', ['--out', file], app.dataDir);
+				const after = await counters(app.dataDir, running);
+				expect(r.code, r.out).toBe(0);
+				expect(r.out).toContain(`Backup written: ${file}`);
+				backups.push({ file, before, after });
+			};
+		};
+		// Held after 2 chunks: nothing is written while this backup runs.
+		await chunksStored(2);
+		await backup(0)();
+		expect(backups[0].before.chunks_done).toBe(2);
+		expect(backups[0].after.chunks_done).toBe(2);
+		// Chunks 3 to 12 are stored while these two run; the gate holds the sweep before its end.
+		gate.allow(12);
+		await backup(1)();
+		await backup(2)();
+		// Released: the last one runs while the sweep goes on to its end (mid-way or not, it must be consistent).
+		gate.open();
+		await backup(3)();
+
 		let midway = 0;
 		for (const b of backups) {
 			const view = asDataDir(b.file);
@@ -114,12 +135,13 @@ describe('backup while the app runs', () => {
 			// No WAL beside a backup: it is one self-contained file.
 			expect(fs.existsSync(`${b.file}-wal`)).toBe(false);
 		}
-		// At least one backup caught the sweep mid-way, with some chunks stored (the point of the exercise).
-		expect(midway).toBeGreaterThan(0);
-	}, 180_000);
+		// The backups caught the sweep mid-way, with some chunks stored (the point of the exercise):
+		// at least the three taken while the gate held its end back.
+		expect(midway).toBeGreaterThanOrEqual(3);
+	}, 420_000);
 
-	it('should refuse to restore into the data folder of the running app', () => {
-		const r = npmScript('restore', [backups[0].file], app.dataDir);
+	it('should refuse to restore into the data folder of the running app', async () => {
+		const r = await npmScript('restore', [backups[0].file], app.dataDir);
 		expect(r.code).toBe(1);
 		expect(r.out).toMatch(/is open in pid \d+|redis-server \(pid \d+\) is running/);
 		expect(fs.existsSync(path.join(app.dataDir, 'paretherm.sqlite.before-restore'))).toBe(false);
@@ -134,7 +156,7 @@ describe('restore', () => {
 		// The backup that caught the sweep furthest from its end, so the restored app has work left.
 		chosen = [...backups].sort((a, b) => a.before.points - b.before.points)[0];
 		restoredDir = fs.mkdtempSync(path.join(work, 'restored-'));
-		const r = npmScript('restore', [chosen.file], restoredDir);
+		const r = await npmScript('restore', [chosen.file], restoredDir);
 		expect(r.code, r.out).toBe(0);
 		expect(r.out).toContain('Restored');
 		expect(await databaseChecksum(restoredDir)).toBe(await databaseChecksum(asDataDir(chosen.file)));
@@ -160,11 +182,11 @@ describe('restore', () => {
 		try {
 			const engineer = await signedIn(restoredApp, DEMO.engineer);
 			expect(await (await engineer.get(`/api/programs/${ids.programId}/sweeps/${ids.sweepId}/fronts`)).text()).toBe(finishedFronts);
-			const deadline = Date.now() + 150_000;
+			const deadline = Date.now() + 300_000;
 			let c = await counters(restoredDir, running);
 			while (c.status !== 'done') {
 				if (c.status === 'failed' || c.status === 'cancelled') throw new Error(`restored sweep ended ${c.status}`);
-				if (Date.now() > deadline) throw new Error(`restored sweep still ${c.status} after 150 s (${c.points} points)`);
+				if (Date.now() > deadline) throw new Error(`restored sweep still ${c.status} after 300 s (${c.points} points)`);
 				await new Promise((r) => setTimeout(r, 250));
 				c = await counters(restoredDir, running);
 			}
@@ -178,24 +200,24 @@ describe('restore', () => {
 		} finally {
 			await restoredApp.stop();
 		}
-	}, 240_000);
+	}, 420_000);
 
 	it('should keep the replaced database as .before-restore', async () => {
-		const target = seedHardening(fs.mkdtempSync(path.join(work, 'replaced-')), { sweeps: false });
+		const target = await seedHardening(fs.mkdtempSync(path.join(work, 'replaced-')), { sweeps: false });
 		const old = await databaseChecksum(target);
-		const r = npmScript('restore', [backups[0].file], target);
+		const r = await npmScript('restore', [backups[0].file], target);
 		expect(r.code, r.out).toBe(0);
 		expect(r.out).toContain('paretherm.sqlite.before-restore');
 		expect(await databaseChecksum(asDataDir(path.join(target, 'paretherm.sqlite.before-restore')))).toBe(old);
 		expect(await databaseChecksum(target)).toBe(await databaseChecksum(asDataDir(backups[0].file)));
-	}, 120_000);
+	}, 240_000);
 
 	describe('error handling', () => {
 		it('should refuse a file that is not a Paretherm database and change nothing', async () => {
 			const target = fs.mkdtempSync(path.join(work, 'refuse-'));
 			const notSqlite = path.join(work, 'notes.txt');
 			fs.writeFileSync(notSqlite, 'not a database');
-			let r = npmScript('restore', [notSqlite], target);
+			let r = await npmScript('restore', [notSqlite], target);
 			expect(r.code).toBe(1);
 			expect(r.out).toContain('not an SQLite database');
 
@@ -204,25 +226,25 @@ describe('restore', () => {
 				const db = new sqlite3.Database(otherSqlite);
 				db.exec('CREATE TABLE t (x INTEGER); INSERT INTO t VALUES (1);', (err) => db.close(() => (err ? reject(err) : resolve())));
 			});
-			r = npmScript('restore', [otherSqlite], target);
+			r = await npmScript('restore', [otherSqlite], target);
 			expect(r.code).toBe(1);
 			expect(r.out).toContain('not a Paretherm one (it has no schema_migrations table)');
 
 			const truncated = path.join(work, 'truncated.sqlite');
 			const bytes = fs.readFileSync(backups[0].file);
 			fs.writeFileSync(truncated, bytes.subarray(0, Math.floor(bytes.length / 3)));
-			r = npmScript('restore', [truncated], target);
+			r = await npmScript('restore', [truncated], target);
 			expect(r.code).toBe(1);
 			expect(r.out).toMatch(/damaged|malformed|not a database|disk image/i);
 
-			r = npmScript('restore', [path.join(work, 'missing.sqlite')], target);
+			r = await npmScript('restore', [path.join(work, 'missing.sqlite')], target);
 			expect(r.code).toBe(1);
 			expect(r.out).toContain('No file at');
 			expect(fs.readdirSync(target)).toEqual([]);
 		});
 
-		it('should never overwrite an existing backup', () => {
-			const r = npmScript('backup', ['--out', backups[0].file], app.dataDir);
+		it('should never overwrite an existing backup', async () => {
+			const r = await npmScript('backup', ['--out', backups[0].file], app.dataDir);
 			expect(r.code).toBe(1);
 			expect(r.out).toContain('exists already');
 		});

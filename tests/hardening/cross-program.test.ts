@@ -120,7 +120,7 @@ describe('cross-program ids', () => {
 		expect(tried).toBeGreaterThan(50);
 		expect(problems).toEqual([]);
 		expect(await databaseChecksum(app.dataDir, ['sessions'])).toBe(before);
-	}, 180_000);
+	}, 300_000);
 
 	it('should refuse another program’s input named in a form field', async () => {
 		const res = await admin.form(`/programs/${ids.programId}/inputs?/duplicate`, { inputId: String(ids.otherInputId) });

@@ -9,6 +9,9 @@
  * failed with a stated reason), with each simulation stored exactly once; every digest must be in
  * the outbox exactly once per recipient and, once the SMTP server accepts again, delivered exactly
  * once. (sweep-restart.test.ts covers the newcomer's layout: private redis-server, in-process worker.)
+ *
+ * Every fault strikes at a known point: the workers run behind the chunk gate, which holds each
+ * sweep after its first chunks until the fault is in place, so no step races the sweep to its end.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -18,11 +21,13 @@ import path from 'node:path';
 import { Redis } from 'ioredis';
 import { SMTPServer } from 'smtp-server';
 import { ROOT, freePort, startApp, type RunningApp } from '../helpers/app';
+import { ChunkGate } from '../helpers/chunk-gate';
 import { queryDb } from '../helpers/db-checksum';
 import { DEMO, lookUpIds, seedHardening, signedIn, type Ids } from './helpers';
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const work = fs.mkdtempSync(path.join(os.tmpdir(), 'paretherm-faults-'));
+const gate = ChunkGate.create('open', work);
 
 // ---------------------------------------------------------------------------------------------
 // A redis-server that keeps its data across SIGKILL (append-only file, fsync on every write).
@@ -105,7 +110,7 @@ function startWorker(): WorkerProc {
 	// node with tsx's loader (not the tsx CLI, whose child would survive a SIGKILL of the CLI).
 	const proc = spawn(process.execPath, ['--import', 'tsx', 'worker/index.ts'], {
 		cwd: ROOT,
-		env: { ...process.env, REDIS_URL: redisUrl(), PARETHERM_WORKER_THREADS: '1', ...TIMINGS },
+		env: { ...process.env, REDIS_URL: redisUrl(), PARETHERM_WORKER_THREADS: '1', ...TIMINGS, ...gate.env },
 		stdio: ['ignore', 'pipe', 'pipe']
 	});
 	const w: WorkerProc = { proc, out: '', exit: new Promise((r) => proc.once('exit', r)) };
@@ -162,7 +167,7 @@ async function sweepRow(id: number): Promise<SweepRow> {
 	return row;
 }
 
-async function waitFor<T>(what: string, fn: () => Promise<T | null | false | undefined>, timeout_ms = 120_000, every_ms = 100): Promise<T> {
+async function waitFor<T>(what: string, fn: () => Promise<T | null | false | undefined>, timeout_ms = 240_000, every_ms = 100): Promise<T> {
 	const deadline = Date.now() + timeout_ms;
 	for (;;) {
 		const v = await fn();
@@ -177,7 +182,7 @@ async function expectFinishedOnce(id: number): Promise<SweepRow> {
 	const row = await waitFor(`sweep ${id} to end`, async () => {
 		const r = await sweepRow(id);
 		return ['done', 'failed', 'cancelled'].includes(r.status) ? r : null;
-	}, 180_000, 200);
+	}, 300_000, 200);
 	if (row.status === 'failed') expect(row.failure_reason ?? '', 'a failed sweep states its reason').toMatch(/\w{10,}/);
 	expect(row.status, row.failure_reason ?? '').toBe('done');
 	expect(row.points).toBe(row.simulation_count);
@@ -201,11 +206,13 @@ async function createSweep(name: string, on = app): Promise<number> {
 }
 
 const storedChunks = (id: number) => sweepRow(id).then((r) => r.chunks);
+/** Chunks of sweep `id` a worker's log says it computed ("sweep 3 chunk 7: 3 simulations in 61 ms …"). */
+const computedBy = (out: string, id: number) => [...out.matchAll(new RegExp(`sweep ${id} chunk (\\d+): \\d+ simulations`, 'g'))].map((m) => Number(m[1]));
 
 beforeAll(async () => {
 	await startRedis();
 	await startSmtp();
-	dataDir = seedHardening(fs.mkdtempSync(path.join(work, 'data-')));
+	dataDir = await seedHardening(fs.mkdtempSync(path.join(work, 'data-')));
 	app = await startWeb();
 	ids = await lookUpIds(app);
 	// Three digest recipients: the manager (subscribed by the seed), the engineer and the architect.
@@ -213,7 +220,7 @@ beforeAll(async () => {
 		const res = await (await signedIn(app, DEMO[who])).form('/settings', { strategyMode: 'default', digest: String(ids.programId) });
 		expect(res.status).toBe(200);
 	}
-}, 240_000);
+}, 300_000);
 
 afterAll(async () => {
 	for (const w of workers) if (w.proc.exitCode === null && w.proc.signalCode === null) w.proc.kill('SIGKILL');
@@ -225,58 +232,67 @@ afterAll(async () => {
 
 describe('faults during sweeps', () => {
 	it('should finish a sweep exactly once when its only worker is SIGKILLed mid-chunk', async () => {
+		// The worker computes chunks 0 and 1, then takes chunk 2 and is held there: the chunk is
+		// in progress (active and locked in Redis) and unfinished when the worker dies.
+		gate.allow(2);
 		const w1 = startWorker();
-		await waitFor('the first worker to consume', async () => /consuming/.test(w1.out), 60_000);
+		await waitFor('the first worker to consume', async () => /consuming/.test(w1.out), 120_000);
 		const id = await createSweep('Worker killed mid-chunk');
-		// Kill it while the active list holds a chunk it has not finished (its log prints each finished chunk).
 		const probe = new Redis(redisUrl());
-		const finishedBy = (out: string) => [...out.matchAll(new RegExp(`sweep ${id} chunk (\\d+):`, 'g'))].map((m) => Number(m[1]));
 		const chunkOf = (jobId: string) => Number(/chunk-(\d+)$/.exec(jobId)?.[1]);
-		await waitFor('the first chunk', async () => finishedBy(w1.out).length > 0, 120_000, 5);
-		const active = await waitFor('a chunk in progress', async () => {
-			const list = await probe.lrange('paretherm:sweeps:active', 0, -1);
-			return list.some((j) => !finishedBy(w1.out).includes(chunkOf(j))) ? list : null;
-		}, 60_000, 5);
+		await waitFor('the first worker to hold chunk 2', async () => w1.out.includes(`sweep ${id} chunk 2: held by the chunk gate`), 240_000, 20);
+		const active = await probe.lrange('paretherm:sweeps:active', 0, -1);
+		expect(active.map(chunkOf)).toEqual([2]);
 		w1.proc.kill('SIGKILL');
 		await w1.exit;
 		expect((await sweepRow(id)).status).not.toBe('done');
-		const doneByW1 = finishedBy(w1.out);
+		const doneByW1 = computedBy(w1.out, id);
+		expect(doneByW1.sort()).toEqual([0, 1]);
 
+		gate.open();
 		const w2 = startWorker();
 		const row = await expectFinishedOnce(id);
 		finished.push(id);
 		expect(row.workers).toBe(2);
-		// The chunk the killed worker held was computed again by the other worker and stored once.
+		// The chunk the killed worker held was computed by the other worker and stored once.
 		const interrupted = active.map(chunkOf).filter((n) => !doneByW1.includes(n));
-		expect(interrupted.length).toBeGreaterThan(0);
-		for (const n of interrupted) expect(w2.out).toMatch(new RegExp(`sweep ${id} chunk ${n}:`));
+		expect(interrupted).toEqual([2]);
+		for (const n of interrupted) expect(computedBy(w2.out, id)).toContain(n);
 		await probe.quit();
-	}, 240_000);
+	}, 420_000);
 
 	it('should accept edits while a sweep stores its chunks (no "database is locked")', async () => {
+		gate.allow(2);
 		const id = await createSweep('Edits while storing');
+		await waitFor('two stored chunks', async () => (await storedChunks(id)) >= 2, 240_000, 20);
 		const engineer = await signedIn(app, DEMO.engineer);
 		const architect = await signedIn(app, DEMO.architect);
 		const [input] = await queryDb<{ data: string }>(dataDir, 'SELECT data FROM parameter_sets WHERE id = ?', [ids.inputId]);
 		const statuses: number[] = [];
 		let whileRunning = 0;
-		for (let i = 0; i < 40 && (await sweepRow(id)).status !== 'done'; i++) {
-			whileRunning++;
+		// Chunks 3 to 6 of 9 are stored while people edit; the gate keeps the sweep from finishing under them.
+		gate.allow(6);
+		for (let i = 0; i < 40 && (i < 3 || (await storedChunks(id)) < 6); i++) {
+			if ((await sweepRow(id)).status !== 'done') whileRunning++;
 			statuses.push((await engineer.form(`/programs/${ids.programId}/inputs/${ids.inputId}?/save`, { name: `Edited while storing ${i}`, json: input.data })).status);
 			statuses.push((await architect.form(`/programs/${ids.programId}/strategies/${ids.strategyId}?/comment`, { body: `comment ${i}` })).status);
 		}
 		expect(whileRunning).toBeGreaterThan(2);
 		expect(statuses.filter((s) => s !== 303 && s !== 200)).toEqual([]);
+		gate.open();
 		await expectFinishedOnce(id);
 		finished.push(id);
 		expect(app.log()).not.toMatch(/SQLITE_BUSY|unexpected error/);
-	}, 240_000);
+	}, 420_000);
 
 	it('should ride out Redis frozen (SIGSTOP) for a few seconds, reads still answering', async () => {
+		gate.allow(2);
 		const id = await createSweep('Redis frozen');
-		await waitFor('two stored chunks', async () => (await storedChunks(id)) >= 2, 120_000, 20);
+		await waitFor('two stored chunks', async () => (await storedChunks(id)) >= 2, 240_000, 20);
 		redis!.kill('SIGSTOP');
 		expect((await sweepRow(id)).status, 'frozen mid-sweep').not.toBe('done');
+		// Released while Redis is frozen: the held chunk is computed and its result waits for Redis.
+		gate.open();
 		let created: Promise<number> | null = null;
 		try {
 			const engineer = await signedIn(app, DEMO.engineer);
@@ -295,34 +311,42 @@ describe('faults during sweeps', () => {
 		await expectFinishedOnce(id);
 		await expectFinishedOnce(second);
 		finished.push(id, second);
-	}, 300_000);
+	}, 420_000);
 
 	it('should finish exactly once when Redis is SIGKILLed and restarted from its append-only file', async () => {
+		gate.allow(2);
 		const id = await createSweep('Redis killed');
-		await waitFor('two stored chunks', async () => (await storedChunks(id)) >= 2, 120_000, 20);
+		await waitFor('two stored chunks', async () => (await storedChunks(id)) >= 2, 240_000, 20);
 		await killRedis();
 		expect((await sweepRow(id)).status, 'killed mid-sweep').not.toBe('done');
-		await sleep(2_000);
+		gate.open();
+		await sleep(2_000); // Redis stays down a while
 		await startRedis();
 		await expectFinishedOnce(id);
 		finished.push(id);
-	}, 300_000);
+	}, 420_000);
 
 	it('should finish exactly once when the web process is SIGKILLed mid-sweep and started again', async () => {
 		const w = startWorker(); // a second worker, so chunks complete while the web process is down
-		await waitFor('the new worker to consume', async () => /consuming/.test(w.out), 60_000);
+		await waitFor('the new worker to consume', async () => /consuming/.test(w.out), 120_000);
+		gate.allow(2);
 		const id = await createSweep('Web process killed');
-		await waitFor('two stored chunks', async () => (await storedChunks(id)) >= 2, 120_000, 20);
+		await waitFor('two stored chunks', async () => (await storedChunks(id)) >= 2, 240_000, 20);
 		app.proc.kill('SIGKILL');
 		await new Promise((r) => (app.proc.exitCode !== null || app.proc.signalCode !== null ? r(null) : app.proc.once('exit', r)));
 		const atKill = await sweepRow(id);
 		expect(atKill.status).not.toBe('done');
-		await sleep(3_000); // workers keep computing; their results wait in Redis
+		expect(atKill.chunks).toBe(2);
+		// The workers compute the rest while the web process is down; their results wait in Redis.
+		gate.open();
+		const { chunk_count } = atKill;
+		await waitFor('the workers to compute every chunk', async () => new Set(workers.flatMap((x) => computedBy(x.out, id))).size === chunk_count, 240_000, 50);
+		expect((await sweepRow(id)).chunks, 'nothing is stored while the web process is down').toBe(2);
 		app = await startWeb();
 		await expectFinishedOnce(id);
 		finished.push(id);
 		expect(app.log()).toMatch(/reconciled \d+ unfinished sweep/);
-	}, 300_000);
+	}, 420_000);
 
 	it('should write each digest once per recipient and deliver each exactly once after the mail server refused them', async () => {
 		expect(finished).toHaveLength(6);

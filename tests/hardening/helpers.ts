@@ -3,7 +3,7 @@
  * a finished sweep, a second program with its own engineer and sweep), the built app on it, and
  * the ids every route parameter needs, looked up in the database.
  */
-import { Client, DEMO, DEMO_PASSWORD, seed, seedAsync, startApp, tempDataDir, type RunningApp } from '../helpers/app';
+import { Client, DEMO, DEMO_PASSWORD, seed, startApp, tempDataDir, type RunningApp } from '../helpers/app';
 import { queryDb } from '../helpers/db-checksum';
 
 export const OUTSIDER = 'outsider@paretherm.test';
@@ -25,19 +25,13 @@ export interface Ids {
 	otherStrategyId: number;
 }
 
-export function seedHardening(dataDir = tempDataDir('paretherm-hardening-'), opts: { sweeps?: boolean } = {}): string {
-	seed(dataDir, 'tests/hardening/fixtures/seed.ts', { HARDENING_SEED_SWEEPS: opts.sweeps === false ? '0' : '1' });
-	return dataDir;
-}
-
-/** `seedHardening` without blocking the test process while the seed computes its sweeps. */
-export async function seedHardeningAsync(dataDir = tempDataDir('paretherm-hardening-'), opts: { sweeps?: boolean } = {}): Promise<string> {
-	await seedAsync(dataDir, 'tests/hardening/fixtures/seed.ts', { HARDENING_SEED_SWEEPS: opts.sweeps === false ? '0' : '1' });
+export async function seedHardening(dataDir = tempDataDir('paretherm-hardening-'), opts: { sweeps?: boolean } = {}): Promise<string> {
+	await seed(dataDir, 'tests/hardening/fixtures/seed.ts', { HARDENING_SEED_SWEEPS: opts.sweeps === false ? '0' : '1' });
 	return dataDir;
 }
 
 export async function startHardenedApp(opts: { env?: Record<string, string>; dataDir?: string } = {}): Promise<RunningApp> {
-	const dataDir = opts.dataDir ?? (await seedHardeningAsync());
+	const dataDir = opts.dataDir ?? (await seedHardening());
 	return startApp({ dataDir, seed: false, env: opts.env });
 }
 

@@ -14,7 +14,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import net from 'node:net';
 import { Client, startApp, type RunningApp } from '../helpers/app';
 import { databaseChecksum } from '../helpers/db-checksum';
-import { DEMO, lookUpIds, seedHardeningAsync, signedIn, type Ids } from './helpers';
+import { DEMO, lookUpIds, seedHardening, signedIn, type Ids } from './helpers';
 
 let app: RunningApp;
 let ids: Ids;
@@ -22,7 +22,7 @@ let engineer: Client;
 let viewer: Client;
 
 beforeAll(async () => {
-	app = await startApp({ dataDir: await seedHardeningAsync(), seed: false, env: { PARETHERM_NO_RUNTIME: '1' } });
+	app = await startApp({ dataDir: await seedHardening(), seed: false, env: { PARETHERM_NO_RUNTIME: '1' } });
 	ids = await lookUpIds(app);
 	engineer = await signedIn(app, DEMO.engineer);
 	viewer = await signedIn(app, DEMO.viewer);

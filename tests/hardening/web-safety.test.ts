@@ -15,7 +15,7 @@ import { databaseChecksum } from '../helpers/db-checksum';
 import { listRoutes } from '../helpers/routes';
 import { launchBrowser } from '../helpers/browser';
 import { waitFor } from '../helpers/sweeps';
-import { DEMO, DEMO_PASSWORD, OUTSIDER, fillRoute, lookUpIds, seedHardeningAsync, signedIn, type Ids } from './helpers';
+import { DEMO, DEMO_PASSWORD, OUTSIDER, fillRoute, lookUpIds, seedHardening, signedIn, type Ids } from './helpers';
 
 // SMTP on a port where nothing listens: the dispatcher fails and logs, and the password must not leak.
 const SMTP_PASSWORD = 'smtp-Secret-4711-do-not-leak';
@@ -41,7 +41,7 @@ let xssInputId = 0;
 let inviteToken = '';
 
 beforeAll(async () => {
-	app = await startApp({ dataDir: await seedHardeningAsync(), seed: false, env: { SMTP_URL, PARETHERM_WORKER_THREADS: '1' } });
+	app = await startApp({ dataDir: await seedHardening(), seed: false, env: { SMTP_URL, PARETHERM_WORKER_THREADS: '1' } });
 	ids = await lookUpIds(app);
 	for (const who of ['engineer', 'architect', 'manager', 'viewer', 'admin'] as const) c[who] = await signedIn(app, DEMO[who]);
 	c.outsider = await signedIn(app, OUTSIDER);
@@ -137,7 +137,7 @@ describe('markup typed by people is served as text', () => {
 		} finally {
 			await browser.close();
 		}
-	}, 120_000);
+	}, 240_000);
 });
 
 describe('security headers', () => {
@@ -217,7 +217,7 @@ describe('security headers', () => {
 		} finally {
 			await browser.close();
 		}
-	}, 120_000);
+	}, 240_000);
 });
 
 describe('origin check on form actions', () => {
@@ -269,7 +269,7 @@ describe('origin check on form actions', () => {
 		expect(problems).toEqual([]);
 		// Sessions are skipped because a request may still refresh its caller's expiry.
 		expect(await databaseChecksum(app.dataDir, quiet)).toBe(before);
-	}, 180_000);
+	}, 240_000);
 });
 
 describe('session cookie', () => {
@@ -283,7 +283,7 @@ describe('session cookie', () => {
 	});
 
 	it('should be Secure when ORIGIN is https', async () => {
-		const https = await startApp({ dataDir: await seedHardeningAsync(undefined, { sweeps: false }), seed: false, env: { ORIGIN: 'https://paretherm.example', PARETHERM_NO_RUNTIME: '1' } });
+		const https = await startApp({ dataDir: await seedHardening(undefined, { sweeps: false }), seed: false, env: { ORIGIN: 'https://paretherm.example', PARETHERM_NO_RUNTIME: '1' } });
 		try {
 			const res = await fetch(`${https.url}/login`, {
 				method: 'POST',
@@ -299,7 +299,7 @@ describe('session cookie', () => {
 		} finally {
 			await https.stop();
 		}
-	}, 120_000);
+	}, 240_000);
 });
 
 describe('sign-in throttling', () => {
@@ -313,8 +313,11 @@ describe('sign-in throttling', () => {
 
 describe('no secrets in responses or the log', () => {
 	it('should show no password hash, session id, SMTP password or invitation token in any route for any caller', async () => {
-		// Let the dispatcher try (and fail) to send through the SMTP server, so its errors are in the log.
-		await new Promise((r) => setTimeout(r, 1500));
+		// Wait until the dispatcher has tried (and failed) to send through the SMTP server, so its errors are in the log.
+		for (const deadline = Date.now() + 120_000; !/\[paretherm mail\] #\d+ .*failed/.test(app.log()); ) {
+			if (Date.now() > deadline) throw new Error(`no failed send in the log after 120 s:\n${app.log()}`);
+			await new Promise((r) => setTimeout(r, 200));
+		}
 		const sessions = (await queryDb<{ id: string }>(app.dataDir, 'SELECT id FROM sessions')).map((s) => s.id);
 		expect(sessions.length).toBeGreaterThan(5);
 		const hashes = (await queryDb<{ password_hash: string | null }>(app.dataDir, 'SELECT password_hash FROM users WHERE password_hash IS NOT NULL')).map((u) => u.password_hash!);
@@ -348,9 +351,9 @@ describe('no secrets in responses or the log', () => {
 		expect((await (await c.admin.get('/admin')).text()).includes(inviteToken)).toBe(false);
 
 		const log = app.log();
-		expect(log).toMatch(/mail\]/); // the dispatcher did log
+		expect(log).toMatch(/\[paretherm mail\] #\d+ .*failed/); // the dispatcher did log its failures
 		for (const p of patterns) expect(log).not.toMatch(p);
 		for (const s of [...secrets, inviteToken]) expect(log.includes(s), `log holds a secret (${s.slice(0, 6)}…)`).toBe(false);
 		expect(log).not.toMatch(/unexpected error/);
-	}, 180_000);
+	}, 300_000);
 });

@@ -2,7 +2,7 @@
  * Starts the built app (`build/`) as a real server on loopback with its own data folder, seeded
  * with the demo program, and gives tests a small HTTP client that keeps cookies per user.
  */
-import { spawn, execFileSync, type ChildProcess } from 'node:child_process';
+import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -28,31 +28,31 @@ export function tempDataDir(prefix = 'paretherm-test-'): string {
 	return fs.mkdtempSync(path.join(os.tmpdir(), prefix));
 }
 
-export function seed(dataDir: string, script = 'scripts/seed.ts', extraEnv: Record<string, string> = {}) {
-	execFileSync(path.join(ROOT, 'node_modules/.bin/tsx'), [script], {
-		cwd: ROOT,
-		env: { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_BCRYPT_COST: '4', PARETHERM_SEED_SWEEP: '0', ...extraEnv },
-		stdio: 'pipe'
+/**
+ * Runs a child process in the project folder to its end and gives its exit code and output.
+ * Asynchronous on purpose: a test process blocked in a synchronous child for a minute (a seed on a
+ * busy machine) cannot answer the test runner, which then reports the run as failed.
+ */
+export function runChild(command: string, args: string[], options: { env?: NodeJS.ProcessEnv; timeout_ms?: number } = {}): Promise<{ code: number | null; out: string }> {
+	return new Promise((resolve, reject) => {
+		const child = spawn(command, args, { cwd: ROOT, env: options.env ?? process.env, stdio: ['ignore', 'pipe', 'pipe'] });
+		let out = '';
+		child.stdout!.on('data', (d) => (out += d));
+		child.stderr!.on('data', (d) => (out += d));
+		const timer = options.timeout_ms ? setTimeout(() => child.kill('SIGKILL'), options.timeout_ms) : null;
+		child.once('error', reject);
+		child.once('close', (code) => {
+			if (timer) clearTimeout(timer);
+			resolve({ code, out });
+		});
 	});
 }
 
-/**
- * The same as `seed`, without blocking this process while it runs (a long synchronous seed stalls
- * the test runner's own messages on a busy machine).
- */
-export function seedAsync(dataDir: string, script = 'scripts/seed.ts', extraEnv: Record<string, string> = {}): Promise<void> {
-	return new Promise((resolve, reject) => {
-		const proc = spawn(path.join(ROOT, 'node_modules/.bin/tsx'), [script], {
-			cwd: ROOT,
-			env: { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_BCRYPT_COST: '4', PARETHERM_SEED_SWEEP: '0', ...extraEnv },
-			stdio: ['ignore', 'pipe', 'pipe']
-		});
-		let output = '';
-		proc.stdout!.on('data', (d) => (output += d));
-		proc.stderr!.on('data', (d) => (output += d));
-		proc.once('error', reject);
-		proc.once('exit', (code) => (code === 0 ? resolve() : reject(new Error(`${script} exited with ${code}:\n${output}`))));
+export async function seed(dataDir: string, script = 'scripts/seed.ts', extraEnv: Record<string, string> = {}): Promise<void> {
+	const r = await runChild(path.join(ROOT, 'node_modules/.bin/tsx'), [script], {
+		env: { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_BCRYPT_COST: '4', PARETHERM_SEED_SWEEP: '0', ...extraEnv }
 	});
+	if (r.code !== 0) throw new Error(`${script} failed (exit ${r.code}):\n${r.out}`);
 }
 
 export interface RunningApp {
@@ -67,7 +67,7 @@ export async function startApp(options: { dataDir?: string; env?: Record<string,
 	if (!fs.existsSync(path.join(ROOT, 'build/index.js')))
 		throw new Error('No build/ found: run `npm run build` before the server tests (scripts/test.sh does).');
 	const dataDir = options.dataDir ?? tempDataDir();
-	if (options.seed !== false) await seedAsync(dataDir);
+	if (options.seed !== false) await seed(dataDir);
 	const port = await freePort();
 	const url = `http://localhost:${port}`;
 	let output = '';

@@ -45,6 +45,9 @@ export class BrowserSession {
 
 	static async open(baseUrl: string): Promise<BrowserSession> {
 		const context = await launchBrowser();
+		// Generous waits: on a busy machine a page can take far longer than playwright's 30 s default.
+		context.setDefaultTimeout(120_000);
+		context.setDefaultNavigationTimeout(120_000);
 		fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
 		return new BrowserSession(context, await context.newPage(), baseUrl);
 	}

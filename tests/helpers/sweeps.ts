@@ -115,7 +115,7 @@ export function sleep(ms: number): Promise<void> {
 	return new Promise((r) => setTimeout(r, ms));
 }
 
-export async function waitFor<T>(what: string, fn: () => Promise<T | null | undefined | false>, timeout_ms = 60_000, every_ms = 50): Promise<T> {
+export async function waitFor<T>(what: string, fn: () => Promise<T | null | undefined | false>, timeout_ms = 180_000, every_ms = 50): Promise<T> {
 	const deadline = Date.now() + timeout_ms;
 	for (;;) {
 		const v = await fn();

@@ -10,7 +10,7 @@ describe('demo seed', () => {
 	const dataDir = tempDataDir('paretherm-seed-');
 
 	it('should load people for every role, the inputs and a finished sweep with fronts', async () => {
-		seed(dataDir, 'scripts/seed.ts', { PARETHERM_SEED_SWEEP: '1' });
+		await seed(dataDir, 'scripts/seed.ts', { PARETHERM_SEED_SWEEP: '1' });
 		const roles = await queryDb<{ role: string }>(dataDir, 'SELECT role FROM memberships ORDER BY role');
 		expect(roles.map((r) => r.role)).toEqual(['architect', 'engineer', 'manager', 'viewer']);
 		const admins = await queryDb(dataDir, 'SELECT id FROM users WHERE is_admin = 1');
@@ -31,11 +31,11 @@ describe('demo seed', () => {
 		expect(scenarios.length).toBeGreaterThan(1);
 		for (const s of scenarios) expect(JSON.parse(s.front_point_ids).length).toBeGreaterThan(0);
 		expect(scenarios.some((s) => s.knee_point_id !== null)).toBe(true);
-	}, 180_000);
+	}, 300_000);
 
 	it('should change nothing when run again', async () => {
 		const before = await databaseChecksum(dataDir);
-		seed(dataDir, 'scripts/seed.ts', { PARETHERM_SEED_SWEEP: '1' });
+		await seed(dataDir, 'scripts/seed.ts', { PARETHERM_SEED_SWEEP: '1' });
 		expect(await databaseChecksum(dataDir)).toBe(before);
-	}, 180_000);
+	}, 300_000);
 });

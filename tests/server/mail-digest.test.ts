@@ -62,7 +62,7 @@ describe('sweep digest', () => {
 		const runtime = await import('../../src/lib/server/sweeps/runtime');
 		await runtime.startSweepRuntime({ inProcessWorker: true, threads: 2 });
 		stopRuntime = runtime.stopSweepRuntime;
-	}, 120_000);
+	}, 240_000);
 
 	afterAll(async () => {
 		await stopRuntime?.();
@@ -76,14 +76,14 @@ describe('sweep digest', () => {
 		const done = await waitFor('the sweep to finish', async () => {
 			const s = await Sweep.findByPk(sweepId);
 			return s && ['done', 'failed', 'cancelled'].includes(s.status) ? s : null;
-		}, 120_000, 100);
+		}, 240_000, 100);
 		expect(done.status, done.failure_reason ?? '').toBe('done');
 		// Written by the service's call after the status change, without any dispatcher running.
-		await waitFor('the digest mark', () => MailMark.findByPk(`sweep-digest:${sweepId}`), 10_000);
+		await waitFor('the digest mark', () => MailMark.findByPk(`sweep-digest:${sweepId}`), 60_000);
 		const rows = await mail.digestMessages(sweepId);
 		expect(rows.map((r) => r.to_address).sort()).toEqual([people.engineer.email, people.manager.email].sort());
 		expect(rows.every((r) => r.status === 'pending' && r.attempts === 0)).toBe(true);
-	}, 150_000);
+	}, 300_000);
 
 	it('should carry the stored figures: recommended strategy per scenario, largest time saved, link and caution', async () => {
 		const [msg] = (await mail.digestMessages(sweepId)).filter((r) => r.to_address === people.manager.email);
@@ -175,7 +175,7 @@ describe('sweep digest', () => {
 		const s = await createSweep(programId, people.engineer.id, smallSweepRequest({ ambients_C: [0], leadTimes_s: [0, 300], setpoints_C: [20] }));
 		const reason = `Chunk 1 of ${s.chunk_count} failed after 3 attempts: the test pulled the plug`;
 		expect(await failSweep(s.id, reason)).toBe(true);
-		await waitFor('the failure digest', () => MailMark.findByPk(`sweep-digest:${s.id}`), 10_000);
+		await waitFor('the failure digest', () => MailMark.findByPk(`sweep-digest:${s.id}`), 60_000);
 		const rows = await mail.digestMessages(s.id);
 		expect(rows.map((r) => r.to_address).sort()).toEqual([people.engineer.email, people.manager.email].sort());
 		expect(rows[0].subject).toContain(`Sweep “${s.name}” failed`);

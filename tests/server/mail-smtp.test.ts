@@ -38,7 +38,7 @@ describe('mail through SMTP from the built app', () => {
 		});
 		admin = new Client(app.url);
 		expect((await admin.signIn(DEMO.admin)).status).toBe(303);
-	}, 120_000);
+	}, 240_000);
 
 	afterAll(async () => {
 		await app?.stop();

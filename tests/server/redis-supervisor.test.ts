@@ -51,8 +51,14 @@ describe('private redis-server', () => {
 		client.on('error', () => {});
 		expect(await client.config('GET', 'appendonly')).toEqual(['appendonly', 'yes']);
 		await client.set('sweep-survives', 'yes');
-		// appendfsync everysec: wait for the fsync before the crash.
-		await new Promise((r) => setTimeout(r, 1500));
+		// appendfsync everysec: the write reaches the append-only file (the OS keeps it across a
+		// SIGKILL) within a second or two; wait until it is there rather than a fixed time.
+		const aofHolds = (d: string): boolean =>
+			fs.readdirSync(d, { withFileTypes: true }).some((e) => (e.isDirectory() ? aofHolds(path.join(d, e.name)) : e.name.endsWith('.aof') && fs.readFileSync(path.join(d, e.name), 'utf8').includes('sweep-survives')));
+		for (const deadline = Date.now() + 60_000; !aofHolds(dir); ) {
+			if (Date.now() > deadline) throw new Error('the write did not reach the append-only file within 60 s');
+			await new Promise((r) => setTimeout(r, 50));
+		}
 
 		const firstPid = server.pid;
 		process.kill(firstPid!, 'SIGKILL');
@@ -65,7 +71,7 @@ describe('private redis-server', () => {
 		const secondPid = server.pid;
 		await server.stop();
 		expect(alive(secondPid)).toBe(false);
-	}, 30_000);
+	}, 120_000);
 
 	it('should stop a server left running by a killed predecessor before starting its own', async () => {
 		const dir = tempDir();
@@ -81,7 +87,7 @@ describe('private redis-server', () => {
 		expect(alive(orphanPid)).toBe(false);
 		expect(logs[0]).toBe(`stopping redis-server pid ${orphanPid} left running by an earlier Paretherm process`);
 		expect(second.pid).not.toBe(orphanPid);
-	}, 30_000);
+	}, 120_000);
 
 	it('should share the server of a live owner process instead of starting a second one', async () => {
 		const dir = tempDir();
@@ -99,7 +105,7 @@ describe('private redis-server', () => {
 		expect(logs).toEqual([`using the private redis-server of Paretherm process ${process.ppid} at unix:${path.join(dir, 'redis.sock')}`]);
 		await second.stop();
 		expect(alive(owner.pid)).toBe(true); // not the second one's to stop
-	}, 30_000);
+	}, 120_000);
 
 	describe('error handling', () => {
 		it('should say what to install when redis-server is missing', () => {

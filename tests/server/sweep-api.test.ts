@@ -70,7 +70,7 @@ beforeAll(async () => {
 	doneSweepId = created.json.id;
 	const report = await runSweepInline(doneSweepId, { threads: 2 });
 	expect(report.status).toBe('done');
-}, 120_000);
+}, 240_000);
 
 afterAll(async () => {
 	await closeSeriesPool();
@@ -172,7 +172,7 @@ describe('reading sweeps', () => {
 		expect(stored.json.series.t_s.at(-1)).toBeCloseTo(60 + onFront.timeToTarget_s, 6);
 		const missing = await call(seriesRoute.GET as Handler, { user: architect, params: { ...params, pointId: '999999' } });
 		expect(missing.status).toBe(404);
-	}, 60_000);
+	}, 180_000);
 
 	it('should export the calibration table as CSV and JSON', async () => {
 		const params = { programId: String(programId), sweepId: String(doneSweepId) };

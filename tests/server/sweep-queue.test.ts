@@ -4,6 +4,9 @@
  * (`tsx worker/index.ts`, one simulation thread each) share one sweep. Every grid point must be
  * computed exactly once, every chunk must report progress, and the sweep's progress must rise
  * monotonically to 100 %.
+ *
+ * The workers run behind the chunk gate: after 2 chunks each worker takes one more and is held,
+ * so both of them compute part of the sweep and its progress is seen mid-way, whatever the timing.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -16,7 +19,9 @@ process.env.PARETHERM_DATA_DIR = fs.mkdtempSync(path.join(os.tmpdir(), 'parether
 process.env.PARETHERM_IN_PROCESS_WORKER = '0';
 process.env.PARETHERM_QUEUE_PREFIX = `ptest${process.pid}`;
 
-const { startTestRedis, seedSweepProgram, smallSweepRequest, waitFor, ROOT, TSX, sleep } = await import('../helpers/sweeps');
+const { startTestRedis, seedSweepProgram, smallSweepRequest, waitFor, ROOT, TSX } = await import('../helpers/sweeps');
+const { ChunkGate } = await import('../helpers/chunk-gate');
+const gate = ChunkGate.create(2, process.env.PARETHERM_DATA_DIR);
 type TestRedis = Awaited<ReturnType<typeof startTestRedis>>;
 
 interface WorkerProc {
@@ -28,7 +33,7 @@ interface WorkerProc {
 function startWorker(redisUrl: string): WorkerProc {
 	const proc = spawn(TSX, ['worker/index.ts'], {
 		cwd: ROOT,
-		env: { ...process.env, REDIS_URL: redisUrl, PARETHERM_WORKER_THREADS: '1' },
+		env: { ...process.env, REDIS_URL: redisUrl, PARETHERM_WORKER_THREADS: '1', ...gate.env },
 		stdio: ['ignore', 'pipe', 'pipe']
 	});
 	const w: WorkerProc = { proc, out: '', exit: new Promise((r) => proc.once('exit', (code) => r(code))) };
@@ -54,7 +59,7 @@ describe('sweep queue with two worker processes', () => {
 		redis = await startTestRedis();
 		process.env.REDIS_URL = redis.url;
 		workers = [startWorker(redis.url), startWorker(redis.url)];
-		await waitFor('both workers to consume the queue', async () => workers.every((w) => /consuming/.test(w.out)), 60_000);
+		await waitFor('both workers to consume the queue', async () => workers.every((w) => /consuming/.test(w.out)), 120_000);
 
 		const { QUEUE_PREFIX, SWEEP_QUEUE } = await import('../../src/lib/server/queue/names');
 		events = new QueueEvents(SWEEP_QUEUE, { connection: { host: '127.0.0.1', port: Number(new URL(redis.url).port) }, prefix: QUEUE_PREFIX });
@@ -68,7 +73,7 @@ describe('sweep queue with two worker processes', () => {
 		const runtime = await import('../../src/lib/server/sweeps/runtime');
 		await runtime.startSweepRuntime({ inProcessWorker: false });
 		stopRuntime = runtime.stopSweepRuntime;
-	}, 120_000);
+	}, 240_000);
 
 	afterAll(async () => {
 		await stopRuntime?.();
@@ -92,16 +97,25 @@ describe('sweep queue with two worker processes', () => {
 
 		const percents: number[] = [];
 		const statuses: string[] = [];
+		const look = async () => {
+			await sweep.reload();
+			const view = sweepStatus(sweep);
+			percents.push(view.progress.percent);
+			statuses.push(view.status);
+			return view;
+		};
+		// Held: chunks 0 and 1 stored, each worker holding one more.
+		await waitFor('two stored chunks, each worker holding one more', async () => (await look()).progress.chunksDone >= 2 && workers.every((w) => new RegExp(`sweep ${sweep.id} chunk \\d+: held by the chunk gate`).test(w.out)), 240_000, 20);
+		expect(sweep.chunks_done).toBe(2);
+		expect(statuses.at(-1)).toBe('running');
+		gate.open();
 		await waitFor(
 			'the sweep to finish',
 			async () => {
-				await sweep.reload();
-				const view = sweepStatus(sweep);
-				percents.push(view.progress.percent);
-				statuses.push(view.status);
+				const view = await look();
 				return view.status === 'done' || view.status === 'failed' ? view : null;
 			},
-			90_000,
+			240_000,
 			10
 		);
 		expect(sweep.status, sweep.failure_reason ?? '').toBe('done');
@@ -121,7 +135,7 @@ describe('sweep queue with two worker processes', () => {
 		expect(chunks.every((c) => c.attempt === 1)).toBe(true);
 
 		// Computed exactly once, by the worker logs: each chunk appears once across both workers.
-		await sleep(200); // let the last log lines arrive
+		await waitFor('every chunk in the worker logs', async () => workers.flatMap((w) => computedChunks(w.out, sweep.id)).length >= 13, 60_000);
 		const perWorker = workers.map((w) => computedChunks(w.out, sweep.id));
 		const all = perWorker.flat();
 		expect(all.map((c) => c.chunk).sort((a, b) => a - b)).toEqual([...Array(13).keys()]);
@@ -144,12 +158,12 @@ describe('sweep queue with two worker processes', () => {
 		const fronts = await sweepFronts(fresh!);
 		expect(fronts.scenarios).toHaveLength(2);
 		expect(fronts.scenarios.every((s) => s.seriesStatus === 'stored')).toBe(true);
-	}, 120_000);
+	}, 360_000);
 
 	it('should close the workers gracefully on SIGTERM', async () => {
 		for (const w of workers) w.proc.kill('SIGTERM');
 		const codes = await Promise.all(workers.map((w) => w.exit));
 		expect(codes).toEqual([0, 0]);
 		for (const w of workers) expect(w.out).toMatch(/SIGTERM: finishing running chunks/);
-	}, 60_000);
+	}, 240_000);
 });

@@ -5,6 +5,7 @@
  *  - Redis loses every key mid-sweep (FLUSHALL, like a server replaced without its data): the
  *    periodic reconciliation re-enqueues what the database still expects, and every point is
  *    stored exactly once.
+ * The worker runs behind the chunk gate, so the cancel and the FLUSHALL land mid-sweep on purpose.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fs from 'node:fs';
@@ -17,6 +18,9 @@ process.env.PARETHERM_QUEUE_PREFIX = `precover${process.pid}`;
 process.env.PARETHERM_JOB_BACKOFF_MS = '100';
 process.env.PARETHERM_RECONCILE_MS = '500';
 process.env.PARETHERM_JOB_LOCK_MS = '2000';
+const { ChunkGate } = await import('../helpers/chunk-gate');
+const gate = ChunkGate.create('open', process.env.PARETHERM_DATA_DIR);
+process.env.PARETHERM_CHUNK_GATE = gate.file;
 
 const { startTestRedis, seedSweepProgram, smallSweepRequest, waitFor, sleep } = await import('../helpers/sweeps');
 const { Sweep, SweepPoint, SweepChunk } = await import('../../src/lib/server/db/models/index');
@@ -36,7 +40,7 @@ describe('sweep recovery on a real Redis', () => {
 		const runtime = await import('../../src/lib/server/sweeps/runtime');
 		await runtime.startSweepRuntime({ inProcessWorker: true, threads: 1 });
 		stop = runtime.stopSweepRuntime;
-	}, 120_000);
+	}, 240_000);
 
 	afterAll(async () => {
 		await stop?.();
@@ -44,7 +48,7 @@ describe('sweep recovery on a real Redis', () => {
 		fs.rmSync(process.env.PARETHERM_DATA_DIR!, { recursive: true, force: true });
 	});
 
-	async function finished(sweep: InstanceType<typeof Sweep>, timeout_ms = 60_000) {
+	async function finished(sweep: InstanceType<typeof Sweep>, timeout_ms = 180_000) {
 		return waitFor(`sweep ${sweep.id} to end`, async () => {
 			await sweep.reload();
 			return ['done', 'failed', 'cancelled'].includes(sweep.status) ? sweep.status : null;
@@ -69,36 +73,41 @@ describe('sweep recovery on a real Redis', () => {
 		expect(await SweepPoint.count({ where: { sweep_id: sweep.id } })).toBe(0);
 		const job = await queue.getJob(chunkJobId(sweep.id, sweep.queue_token, 0));
 		expect(job?.attemptsMade ?? 3).toBe(3);
-	}, 90_000);
+	}, 300_000);
 
 	it('should withdraw the remaining jobs of a cancelled sweep and discard late results', async () => {
 		const queue = activeQueue()!;
+		gate.allow(1); // held on chunk 1 of 13 (in progress) until the cancel is in
 		const sweep = await createSweep(programId, null, smallSweepRequest({ leadTimes_s: [0, 200, 400, 600], chunkSize: 2 }));
-		await waitFor('a first stored chunk', async () => (await sweep.reload()).chunks_done >= 1 || null);
+		await waitFor('a first stored chunk', async () => (await sweep.reload()).chunks_done >= 1 || null, 240_000);
 		expect(await cancelSweep(sweep.id)).toBe(true);
+		gate.open();
 		// Every job of the sweep leaves Redis: waiting ones at once, a running one when it ends.
 		await waitFor('the sweep’s jobs to leave the queue', async () => {
 			for (let i = 0; i < sweep.chunk_count; i++) if (await queue.getJob(chunkJobId(sweep.id, sweep.queue_token, i))) return null;
 			return true;
-		}, 30_000, 100);
+		}, 120_000, 100);
 		await sweep.reload();
 		expect(sweep.status).toBe('cancelled');
 		const stored = await SweepPoint.count({ where: { sweep_id: sweep.id } });
-		expect(stored).toBeLessThan(sweep.simulation_count);
+		expect(stored).toBe(2); // the one chunk stored before the cancel; the held one was skipped
 		await sleep(1000);
 		expect(await SweepPoint.count({ where: { sweep_id: sweep.id } })).toBe(stored);
-	}, 90_000);
+	}, 300_000);
 
 	it('should re-enqueue what Redis lost and store every point exactly once', async () => {
+		gate.allow(2); // held on chunk 2 of 13 until Redis has lost everything
 		const sweep = await createSweep(programId, null, smallSweepRequest({ leadTimes_s: [0, 200, 400, 600], chunkSize: 2 }));
-		await waitFor('two stored chunks', async () => (await sweep.reload()).chunks_done >= 2 || null);
+		await waitFor('two stored chunks', async () => (await sweep.reload()).chunks_done >= 2 || null, 240_000);
 		const client = new Redis(redis.url);
 		await client.flushall();
 		client.disconnect();
-		expect(await finished(sweep, 90_000)).toBe('done');
+		expect((await sweep.reload()).status).toBe('running');
+		gate.open();
+		expect(await finished(sweep, 240_000)).toBe('done');
 		const points = await SweepPoint.findAll({ where: { sweep_id: sweep.id } });
 		expect(points).toHaveLength(sweep.simulation_count);
 		expect(new Set(points.map((p) => `${p.scenario_index}/${p.strategy_index}`)).size).toBe(sweep.simulation_count);
 		expect(await SweepChunk.count({ where: { sweep_id: sweep.id } })).toBe(sweep.chunk_count);
-	}, 120_000);
+	}, 360_000);
 });

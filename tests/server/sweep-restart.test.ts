@@ -4,6 +4,9 @@
  * orphaned, a chunk possibly half computed. A new process on the same data folder must stop the
  * orphan, bring Redis back from its append-only file, collect what finished meanwhile, retry what
  * was interrupted, and complete the sweep with every point stored exactly once.
+ *
+ * The first process runs behind the chunk gate: it stores 4 of the 21 chunks and is held on the
+ * 5th, so the kill lands mid-sweep on purpose, with a chunk in progress.
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -15,6 +18,8 @@ const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'paretherm-restart-'));
 process.env.PARETHERM_DATA_DIR = dataDir;
 
 const { ROOT, waitFor } = await import('../helpers/sweeps');
+const { ChunkGate } = await import('../helpers/chunk-gate');
+const gate = ChunkGate.create(4, dataDir);
 
 interface Run {
 	proc: ChildProcess;
@@ -23,7 +28,7 @@ interface Run {
 }
 
 function runService(): Run {
-	const env: NodeJS.ProcessEnv = { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_WORKER_THREADS: '1', PARETHERM_JOB_LOCK_MS: '3000', PARETHERM_STALLED_CHECK_MS: '1000', PARETHERM_RECONCILE_MS: '1000' };
+	const env: NodeJS.ProcessEnv = { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_WORKER_THREADS: '1', PARETHERM_JOB_LOCK_MS: '3000', PARETHERM_STALLED_CHECK_MS: '1000', PARETHERM_RECONCILE_MS: '1000', ...gate.env };
 	delete env.REDIS_URL; // the private redis-server path, as for a newcomer's `npm start`
 	delete env.PARETHERM_IN_PROCESS_WORKER;
 	// node with tsx's loader, not the tsx CLI: the CLI runs the script in a child process, and
@@ -69,20 +74,21 @@ describe('sweep restart after SIGKILL', () => {
 	it('should finish the sweep with every point stored exactly once', async () => {
 		const first = runService();
 		const atKill = await waitFor(
-			'the first run to store part of the sweep',
+			'the first run to store 4 chunks and hold the 5th',
 			async () => {
 				const p = lastProgress(first.out);
-				return p && p.done >= 4 ? p : null;
+				return p && p.done >= 8 && /chunk 4: held by the chunk gate/.test(first.out) ? p : null;
 			},
-			90_000,
-			5
+			240_000,
+			20
 		);
 		first.proc.kill('SIGKILL');
 		await first.exit;
-		expect(atKill.done).toBeLessThan(atKill.total); // killed mid-sweep, not after it
+		expect(atKill).toEqual({ done: 8, total: 42 }); // killed mid-sweep, not after it
 		const orphan = redisPid();
 		expect(alive(orphan)).toBe(true); // its redis-server outlived it, as after a real crash
 
+		gate.open();
 		const second = runService();
 		const code = await second.exit;
 		expect(code, second.out).toBe(0);
@@ -106,5 +112,5 @@ describe('sweep restart after SIGKILL', () => {
 		expect(sweep.chunks_done).toBe(21);
 		// Two different processes stored chunks: the run before the kill and the one after.
 		expect(new Set(chunks.map((c) => c.worker)).size).toBe(2);
-	}, 180_000);
+	}, 420_000);
 });

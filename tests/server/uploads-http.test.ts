@@ -73,7 +73,7 @@ beforeAll(async () => {
 		expect((await clients[who].signIn(DEMO[who])).status).toBe(303);
 	}
 	programId = Number(/\/programs\/(\d+)/.exec((await engineer().get('/')).headers.get('location')!)![1]);
-}, 120_000);
+}, 240_000);
 afterAll(async () => {
 	await app?.stop();
 });
@@ -300,5 +300,5 @@ describe('uploads and model checks over HTTP', () => {
 		// And the strategy's thread links the citation to the check (and only that one).
 		const thread = await (await clients.viewer.get(`/programs/${programId}/strategies/${strategyId}`)).text();
 		expect(thread).toContain(`<a class="text-current-700 underline" href="/programs/${programId}/checks/${checkId}">check #${checkId}</a>`);
-	}, 150_000);
+	}, 300_000);
 });

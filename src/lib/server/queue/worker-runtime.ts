@@ -6,12 +6,13 @@
  * another worker, computing it twice).
  */
 import os from 'node:os';
-import { Worker, type Job } from 'bullmq';
+import { WaitingError, Worker, type Job } from 'bullmq';
 import type { Redis } from 'ioredis';
 import { createRedisClient, type RedisTarget } from './connection';
 import type { ChunkJobData, ChunkJobResult, ComputedPoint, JobProgress, SeriesJobData, SeriesJobResult } from './jobs';
 import { JOB_FRONT_SERIES, JOB_SWEEP_CHUNK, QUEUE_PREFIX, SWEEP_QUEUE, cancelledKey } from './names';
 import { SimulationPool, defaultThreadCount } from './thread-pool';
+import { passChunkGate } from './chunk-gate';
 
 export interface SweepWorkerOptions {
 	target: RedisTarget;
@@ -58,8 +59,9 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 
 	const isCancelled = async (redis: Redis, sweepId: number, token: string) => (await redis.exists(cancelledKey(sweepId, token))) === 1;
 
-	const processor = async (job: Job): Promise<ChunkJobResult | SeriesJobResult> => {
-		const t0 = Date.now();
+	let closing = false;
+	const processor = async (job: Job, token?: string): Promise<ChunkJobResult | SeriesJobResult> => {
+		let t0 = Date.now();
 		const redis = (await worker.client) as unknown as Redis;
 		// Progress is reported as {done,total}; throttled so a fast chunk does not flood Redis.
 		let lastProgressAt = 0;
@@ -72,6 +74,13 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 
 		if (job.name === JOB_SWEEP_CHUNK) {
 			const data = job.data as ChunkJobData;
+			// Held by the chunk gate (PARETHERM_CHUNK_GATE, off by default)? A closing worker hands the chunk back without using an attempt.
+			const gate = await passChunkGate(data.chunkIndex, () => closing, () => log(`sweep ${data.sweepId} chunk ${data.chunkIndex}: held by the chunk gate`));
+			if (gate === 'stopped') {
+				await job.moveToWait(token);
+				throw new WaitingError();
+			}
+			t0 = Date.now();
 			if (await isCancelled(redis, data.sweepId, data.queueToken))
 				return { sweepId: data.sweepId, chunkIndex: data.chunkIndex, cancelled: true, points: [], worker: workerId, attempt: job.attemptsMade + 1, elapsed_ms: 0 };
 			const points = await pool.run<ComputedPoint[]>({ kind: 'chunk', data }, progress);
@@ -109,13 +118,14 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 	await worker.waitUntilReady();
 	log(`worker ${workerId} consuming “${SWEEP_QUEUE}” with ${threads} simulation thread(s)`);
 
-	let closing: Promise<void> | null = null;
+	let closed: Promise<void> | null = null;
 	return {
 		workerId,
 		threads,
 		worker,
 		close(timeout_ms = 30_000) {
-			closing ??= (async () => {
+			closing = true;
+			closed ??= (async () => {
 				// Graceful: stop taking jobs and let running chunks finish; past the timeout, force.
 				const graceful = worker.close();
 				const timer = new Promise<'timeout'>((r) => setTimeout(() => r('timeout'), timeout_ms).unref());
@@ -126,7 +136,7 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 				await pool.close();
 				connection.disconnect();
 			})();
-			return closing;
+			return closed;
 		}
 	};
 }

@@ -68,7 +68,7 @@ import { EngineInputError } from './schemas';
 import { ImplicitDiffusion, SphericalParticle } from './diffusion';
 import { cellWindow, type CellWindow } from './cell-window';
 import { TransportTable } from './electrolyte-transport';
-import { makeEntropic, makeOcp, tabulateUnit } from './ocp';
+import { tabulatedEntropic, tabulatedOcp } from './ocp';
 import { arrhenius, fmt, FARADAY_C_per_mol, GAS_CONSTANT_J_per_molK, REFERENCE_TEMP_K } from './units';
 
 export const DEFAULT_ELECTROLYTE_CELLS = { negative: 20, separator: 10, positive: 20 } as const;
@@ -186,13 +186,13 @@ export class CellModel {
 		this.negative = new SphericalParticle(n.particleRadius_m, shells);
 		this.positive = new SphericalParticle(p.particleRadius_m, shells);
 		// Tabulated for speed (see tabulateUnit); stoichiometries are clamped to [0, 1] here anyway.
-		this.Un = tabulateUnit(makeOcp(n.ocp));
-		this.Up = tabulateUnit(makeOcp(p.ocp));
-		this.dUn = tabulateUnit(makeEntropic(n.entropic), 1025);
-		this.dUp = tabulateUnit(makeEntropic(p.entropic), 1025);
+		this.Un = tabulatedOcp(n.ocp);
+		this.Up = tabulatedOcp(p.ocp);
+		this.dUn = tabulatedEntropic(n.entropic);
+		this.dUp = tabulatedEntropic(p.entropic);
 		const c0 = el.concentration_mol_m3;
-		this.kappa = new TransportTable('conductivity', el.conductivityModel ?? { kind: 'constant' }, el.conductivity_S_per_m, el.conductivityActivation_J_per_mol, c0);
-		this.diffusivity = new TransportTable('diffusivity', el.diffusivityModel ?? { kind: 'constant' }, el.diffusivity_m2_s, el.diffusivityActivation_J_per_mol, c0);
+		this.kappa = TransportTable.shared('conductivity', el.conductivityModel ?? { kind: 'constant' }, el.conductivity_S_per_m, el.conductivityActivation_J_per_mol, c0);
+		this.diffusivity = TransportTable.shared('diffusivity', el.diffusivityModel ?? { kind: 'constant' }, el.diffusivity_m2_s, el.diffusivityActivation_J_per_mol, c0);
 		this.area_m2 = cell.electrodeArea_m2;
 		this.cmaxN = n.maxConcentration_mol_m3;
 		this.cmaxP = p.maxConcentration_mol_m3;

@@ -134,6 +134,8 @@ export function firstBadPoint(
  * temperature themselves, and concentrations beyond the table, are evaluated
  * directly.
  */
+const sharedTables = new Map<string, TransportTable>();
+
 export class TransportTable {
 	private readonly direct: TransportFunction;
 	private readonly table: Float64Array | null;
@@ -158,6 +160,21 @@ export class TransportTable {
 		for (let i = 0; i <= points; i++) t[i] = atRef(i / this.perStep, REFERENCE_TEMP_K);
 		t[points + 1] = t[points];
 		this.table = t;
+	}
+
+	/**
+	 * A table per distinct model (sweeps simulate the same cell thousands of times). The instance
+	 * holds the current temperature, so a cell model must set it before each use (prepare does).
+	 */
+	static shared(property: TransportProperty, model: TransportModel, scalar: number | undefined, activation_J_per_mol: number, initial_mol_m3: number): TransportTable {
+		const key = JSON.stringify([property, model, scalar, activation_J_per_mol, initial_mol_m3]);
+		let t = sharedTables.get(key);
+		if (!t) {
+			if (sharedTables.size >= 64) sharedTables.delete(sharedTables.keys().next().value as string);
+			t = new TransportTable(property, model, scalar, activation_J_per_mol, initial_mol_m3);
+			sharedTables.set(key, t);
+		}
+		return t;
 	}
 
 	setTemperature(temp_K: number): void {

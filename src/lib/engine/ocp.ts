@@ -174,3 +174,29 @@ export function tabulateUnit(f: (x: number) => number, points = 4097): (x: numbe
 		return y[i] + t * (y[i + 1] - y[i]);
 	};
 }
+
+/**
+ * Tabulated curves shared between simulations of the same cell: a sweep runs thousands of
+ * simulations of a few cells, and rebuilding a 4097-point table of a tanh/exp fit each time cost
+ * more than a short charge. Keyed by the curve's content, so equal specs share one table.
+ */
+const tableCache = new Map<string, (x: number) => number>();
+export function cachedTable(key: string, build: () => (x: number) => number): (x: number) => number {
+	let f = tableCache.get(key);
+	if (!f) {
+		if (tableCache.size >= 64) tableCache.delete(tableCache.keys().next().value as string);
+		f = build();
+		tableCache.set(key, f);
+	}
+	return f;
+}
+
+/** U(θ) of an OCP spec as a shared 4097-point table. */
+export function tabulatedOcp(spec: OcpSpec): (sto: number) => number {
+	return cachedTable(`ocp:${JSON.stringify(spec)}`, () => tabulateUnit(makeOcp(spec)));
+}
+
+/** dU/dT(θ) of an entropic table as a shared 1025-point table. */
+export function tabulatedEntropic(table: EntropicTable): (sto: number) => number {
+	return cachedTable(`dUdT:${JSON.stringify(table)}`, () => tabulateUnit(makeEntropic(table), 1025));
+}

@@ -67,7 +67,7 @@ import type { CellParams } from './schemas';
 import { EngineInputError } from './schemas';
 import { ImplicitDiffusion, SphericalParticle } from './diffusion';
 import { cellWindow, type CellWindow } from './cell-window';
-import { makeTransport, type TransportFunction } from './electrolyte-transport';
+import { TransportTable } from './electrolyte-transport';
 import { makeEntropic, makeOcp, tabulateUnit } from './ocp';
 import { arrhenius, fmt, FARADAY_C_per_mol, GAS_CONSTANT_J_per_molK, REFERENCE_TEMP_K } from './units';
 
@@ -118,8 +118,8 @@ export class CellModel {
 	private readonly Up: (sto: number) => number;
 	private readonly dUn: (sto: number) => number;
 	private readonly dUp: (sto: number) => number;
-	private readonly kappa: TransportFunction;
-	private readonly diffusivity: TransportFunction;
+	private readonly kappa: TransportTable;
+	private readonly diffusivity: TransportTable;
 	private readonly area_m2: number;
 	private readonly cmaxN: number;
 	private readonly cmaxP: number;
@@ -190,8 +190,9 @@ export class CellModel {
 		this.Up = tabulateUnit(makeOcp(p.ocp));
 		this.dUn = tabulateUnit(makeEntropic(n.entropic), 1025);
 		this.dUp = tabulateUnit(makeEntropic(p.entropic), 1025);
-		this.kappa = makeTransport('conductivity', el.conductivityModel ?? { kind: 'constant' }, el.conductivity_S_per_m, el.conductivityActivation_J_per_mol);
-		this.diffusivity = makeTransport('diffusivity', el.diffusivityModel ?? { kind: 'constant' }, el.diffusivity_m2_s, el.diffusivityActivation_J_per_mol);
+		const c0 = el.concentration_mol_m3;
+		this.kappa = new TransportTable('conductivity', el.conductivityModel ?? { kind: 'constant' }, el.conductivity_S_per_m, el.conductivityActivation_J_per_mol, c0);
+		this.diffusivity = new TransportTable('diffusivity', el.diffusivityModel ?? { kind: 'constant' }, el.diffusivity_m2_s, el.diffusivityActivation_J_per_mol, c0);
 		this.area_m2 = cell.electrodeArea_m2;
 		this.cmaxN = n.maxConcentration_mol_m3;
 		this.cmaxP = p.maxConcentration_mol_m3;
@@ -332,10 +333,12 @@ export class CellModel {
 		const { nE, dx, brug, cellD, faceG } = this;
 		let rAnodeSep = 0;
 		let rVoltage = 0;
+		this.diffusivity.setTemperature(temp_K);
+		this.kappa.setTemperature(temp_K);
 		for (let i = 0; i < nE; i++) {
 			const ci = conc[i];
-			const D = this.diffusivity(ci, temp_K);
-			const kap = this.kappa(ci, temp_K);
+			const D = this.diffusivity.at(ci);
+			const kap = this.kappa.at(ci);
 			if (!(D > 0 && kap > 0 && Number.isFinite(D) && Number.isFinite(kap))) this.transportOutOfRange(ci, temp_K, D, kap);
 			cellD[i] = D * brug[i];
 			const r = 1 / (kap * brug[i]);

@@ -125,3 +125,51 @@ export function firstBadPoint(
 	}
 	return null;
 }
+
+/**
+ * κ or D for the simulation's inner loop: the concentration dependence at the
+ * reference temperature is tabulated once per cell (uniform grid, linear
+ * interpolation, 2049 points up to 4× the initial concentration) and scaled by
+ * the Arrhenius factor of the step's temperature; correlations that carry
+ * temperature themselves, and concentrations beyond the table, are evaluated
+ * directly.
+ */
+export class TransportTable {
+	private readonly direct: TransportFunction;
+	private readonly table: Float64Array | null;
+	private readonly perStep: number;
+	private readonly top_mol_m3: number;
+	private readonly activation_J_per_mol: number;
+	private temp_K = REFERENCE_TEMP_K;
+	private factor = 1;
+
+	constructor(property: TransportProperty, model: TransportModel, scalar: number | undefined, activation_J_per_mol: number, initial_mol_m3: number) {
+		this.direct = makeTransport(property, model, scalar, activation_J_per_mol);
+		this.activation_J_per_mol = activation_J_per_mol;
+		this.top_mol_m3 = 4 * initial_mol_m3;
+		const points = 2048;
+		this.perStep = points / this.top_mol_m3;
+		if (model.kind === 'valoen-reimers2005') {
+			this.table = null;
+			return;
+		}
+		const atRef = makeTransport(property, model, scalar, 0);
+		const t = new Float64Array(points + 2);
+		for (let i = 0; i <= points; i++) t[i] = atRef(i / this.perStep, REFERENCE_TEMP_K);
+		t[points + 1] = t[points];
+		this.table = t;
+	}
+
+	setTemperature(temp_K: number): void {
+		this.temp_K = temp_K;
+		this.factor = arrhenius(this.activation_J_per_mol, temp_K, REFERENCE_TEMP_K);
+	}
+
+	at(c_mol_m3: number): number {
+		const t = this.table;
+		if (t === null || !(c_mol_m3 >= 0) || c_mol_m3 >= this.top_mol_m3) return this.direct(c_mol_m3, this.temp_K);
+		const u = c_mol_m3 * this.perStep;
+		const i = u | 0;
+		return (t[i] + (u - i) * (t[i + 1] - t[i])) * this.factor;
+	}
+}

@@ -186,6 +186,14 @@ export function replayCurrent(
 		if (out.soc < minSoc) minSoc = out.soc;
 		if (out.soc > maxSoc) maxSoc = out.soc;
 	}
+	if (model.clamps.electrolyteFloor > 0) {
+		notes.push(
+			`the logged current would have emptied the electrolyte in ${model.clamps.electrolyteFloor} step(s); the model held its concentration at the ${model.electrolyteFloor_mol_m3.toFixed(1)} mol/m³ floor there, so the simulated voltage is unreliable in those stretches`
+		);
+	}
+	if (model.clamps.stoichiometry > 0) {
+		notes.push(`a particle's surface stoichiometry was held inside 0…1 in ${model.clamps.stoichiometry} step(s): the log drives the cell past the end of its usable window`);
+	}
 	if (minSoc < -0.02 || maxSoc > 1.02) {
 		notes.push(
 			`the replay left the cell's usable window (state of charge ${(minSoc * 100).toFixed(1)} % … ${(maxSoc * 100).toFixed(1)} %): the initial state of charge, the state of health or the cell's capacity does not match the log`

@@ -311,7 +311,8 @@ describe('heat generation (Bernardi et al. 1985)', () => {
 
 	it('should approach T·dU/dT·ΔQ at C/100 and below: positive on charge, negative on discharge', () => {
 		// Bernardi, Pawlikowski & Newman, J. Electrochem. Soc. 132 (1985) 5: Q = I(V − U) + I·T·dU/dT with I > 0 on
-		// charge. The reversible part is ∝ I, the irreversible one ∝ I²: at C/100 (T·dU/dT ≈ 90 mV against an
+		// charge, where dU/dT of the cell is dU_p/dT − dU_n/dT (here both electrodes carry one; electrolyte-and-heat
+		// checks the positive alone). The reversible part is ∝ I, the irreversible one ∝ I²: at C/100 (T·dU/dT ≈ 90 mV against an
 		// overpotential of a few mV) the heat is within a few per cent of T·dU/dT·ΔQ, at C/1000 within a few per mille.
 		const cell = entropicCell();
 		const C1 = cellWindow(cell, 1).capacity_Ah;

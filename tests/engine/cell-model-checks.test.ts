@@ -18,7 +18,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { CellModel } from '../../src/lib/engine/cell-model';
-import { cellWindow, demoNmcPouch, FARADAY_C_per_mol, GAS_CONSTANT_J_per_molK, type CellParams } from '../../src/lib/engine/index';
+import { cellWindow, demoNmcPouch, graphiteOcpChen2020_V, FARADAY_C_per_mol, GAS_CONSTANT_J_per_molK, type CellParams } from '../../src/lib/engine/index';
 
 const F = FARADAY_C_per_mol;
 const R = GAS_CONSTANT_J_per_molK;
@@ -406,5 +406,228 @@ describe('heat generation (Bernardi et al. 1985)', () => {
 		expect(Math.abs(fine.gap)).toBeLessThan(0.6 * Math.abs(coarse.gap));
 		// Without it the cycle releases less heat than the work put in (the relaxation heat is missing).
 		expect(without.gap).toBeGreaterThan(0.1);
+	});
+});
+
+/** The demo cell reduced to one resistive effect at a time (test copies, never the demo library). */
+function bareCell(over: { negative?: Partial<CellParams['negative']>; positive?: Partial<CellParams['positive']>; cell?: Partial<CellParams> } = {}): CellParams {
+	const base = demoNmcPouch;
+	return {
+		...base,
+		negative: { ...base.negative, filmResistance_ohm_m2: 0, conductivity_S_per_m: undefined, entropic: zeroEntropy, ...over.negative },
+		positive: { ...base.positive, filmResistance_ohm_m2: 0, conductivity_S_per_m: undefined, entropic: zeroEntropy, ...over.positive },
+		contactResistance_ohm: 0,
+		...over.cell
+	} as CellParams;
+}
+
+/** Particle surface area of an electrode in the cell: a·L·A with a = 3ε_s/R for spheres (Doyle, Fuller & Newman 1993). */
+const surface_m2 = (cell: CellParams, e: CellParams['negative'], remaining = 1) => ((3 * e.activeMaterialFraction) / e.particleRadius_m) * e.thickness_m * cell.electrodeArea_m2 * remaining;
+const arrheniusFactor = (Ea: number, T: number) => Math.exp((Ea / R) * (1 / T25 - 1 / T));
+
+/** One very short step from rest: surface stoichiometries still those set by the state of charge. */
+function firstInstant(cell: CellParams, current_A: number, options: { soh?: number; temp_K?: number; electrolyte?: 'full' | 'ideal' } = {}) {
+	const m = new CellModel(cell, options.soh ?? 1, { electrolyte: options.electrolyte ?? 'ideal' });
+	m.setSoc(0.5);
+	m.prepare(1e-6, options.temp_K ?? T25);
+	return { ...m.evaluate(current_A) };
+}
+
+describe('kinetics and resistances (definitions and published laws)', () => {
+	it('should give the symmetric Butler–Volmer overpotentials with j0 = m·√(c_e·c_s·(c_max − c_s)), rate constants Arrhenius in T', () => {
+		// Butler–Volmer with α = ½: η = (2RT/F)·asinh(j/(2 j0)) (Doyle, Fuller & Newman, J. Electrochem. Soc. 140 (1993)
+		// 1526); j = I / particle surface; rate constants follow Arrhenius (Ea of the cell file).
+		const cell = bareCell();
+		const w = cellWindow(cell, 1);
+		const thetaN = w.negativeAt0Soc + 0.5 * (w.negativeAt100Soc - w.negativeAt0Soc);
+		const thetaP = w.positiveAt0Soc + 0.5 * (w.positiveAt100Soc - w.positiveAt0Soc);
+		for (const [I, T] of [
+			[60, T25],
+			[-60, T25],
+			[30, 273.15],
+			[120, 318.15]
+		]) {
+			const o = firstInstant(cell, I, { temp_K: T });
+			const eta = (e: CellParams['negative'], theta: number) => {
+				const cmax = e.maxConcentration_mol_m3;
+				const j0 = e.rateConstant * arrheniusFactor(e.rateActivation_J_per_mol, T) * Math.sqrt(cell.electrolyte.concentration_mol_m3 * theta * cmax * (cmax - theta * cmax));
+				return ((2 * R * T) / F) * Math.asinh(I / surface_m2(cell, e) / (2 * j0));
+			};
+			const expected = eta(cell.negative, thetaN) + eta(cell.positive, thetaP);
+			expect(Math.abs(expected)).toBeGreaterThan(0.05);
+			// (the surface takes the flux at once: the extrapolated surface concentration moves by ∂c/∂r·h at t = 0+)
+			expect(Math.abs(o.voltage_V - o.ocv_V - expected)).toBeLessThan(1e-3 * Math.abs(expected));
+			// Anode potential vs Li/Li+: U_n(θ) minus the negative electrode's overpotential on charge (Chen et al. 2020 fit;
+			// the engine tabulates it within 0.1 mV).
+			const Un = graphiteOcpChen2020_V(thetaN);
+			expect(Math.abs(o.anodePotential_V - (Un - eta(cell.negative, thetaN)))).toBeLessThan(2e-4);
+		}
+	});
+
+	it('should add the film drops I·R_film/S per electrode, grown with the fade and scaled by Arrhenius', () => {
+		// A film resistance per unit particle surface (Ω·m²) over the electrode's particle surface S = 3ε_s/R·L·A;
+		// growth (1 + g·(1 − SOH)) (format: "2.5 → +50 % at SOH 0.8"); lost anode material takes its surface with it
+		// (remaining 1 − anodeLossPerFade·(1 − SOH), cell window); resistance ∝ 1/Arrhenius factor.
+		const cell = bareCell({
+			negative: { rateConstant: 1, filmResistance_ohm_m2: 0.004, filmActivation_J_per_mol: 30_000 },
+			positive: { rateConstant: 1, filmResistance_ohm_m2: 0.002, filmActivation_J_per_mol: 20_000 }
+		});
+		const I = 60;
+		const drop = (soh: number, T: number) => {
+			const o = firstInstant(cell, I, { soh, temp_K: T });
+			return o.voltage_V - o.ocv_V;
+		};
+		const fade = 0.2;
+		const growth = 1 + cell.ageing.filmGrowthPerFade * fade;
+		const remaining = 1 - cell.ageing.anodeLossPerFade * fade;
+		const filmN = (soh: number, T: number) => (0.004 * (soh < 1 ? growth : 1)) / arrheniusFactor(30_000, T) / surface_m2(cell, cell.negative, soh < 1 ? remaining : 1);
+		const filmP = (soh: number, T: number) => (0.002 * (soh < 1 ? growth : 1)) / arrheniusFactor(20_000, T) / surface_m2(cell, cell.positive);
+		for (const [soh, T] of [
+			[1, T25],
+			[0.8, T25],
+			[1, 263.15]
+		]) {
+			const expected = I * (filmN(soh, T) + filmP(soh, T));
+			expect(Math.abs(drop(soh, T) - expected)).toBeLessThan(0.01 * expected);
+			// The negative electrode's film lowers the anode potential on charge by I·R_film,n/S_n.
+			const o = firstInstant(cell, I, { soh, temp_K: T });
+			const w = cellWindow(cell, soh);
+			const thetaN = w.negativeAt0Soc + 0.5 * (w.negativeAt100Soc - w.negativeAt0Soc);
+			expect(Math.abs(o.anodePotential_V - (graphiteOcpChen2020_V(thetaN) - I * filmN(soh, T)))).toBeLessThan(3e-4);
+		}
+	});
+
+	it('should add the contact resistance I·R_c, grown with the fade, to the voltage but not to the anode potential', () => {
+		// Tabs, collectors and welds are outside the electrode: they raise the terminal voltage only.
+		const cell = bareCell({ negative: { rateConstant: 1 }, positive: { rateConstant: 1 }, cell: { contactResistance_ohm: 0.001 } });
+		const ref = bareCell({ negative: { rateConstant: 1 }, positive: { rateConstant: 1 } });
+		for (const soh of [1, 0.8]) {
+			const a = firstInstant(cell, 60, { soh });
+			const b = firstInstant(ref, 60, { soh });
+			const Rc = 0.001 * (1 + cell.ageing.contactGrowthPerFade * (1 - soh));
+			expect(a.voltage_V - b.voltage_V).toBeCloseTo(60 * Rc, 7);
+			expect(a.anodePotential_V).toBeCloseTo(b.anodePotential_V, 9);
+		}
+	});
+
+	it("should add the electrodes' solid-phase drops: I·L/(3σ_eff·A) each to the voltage, −I·L_n/(6σ_eff·A) to the anode's", () => {
+		// Ohm's law in the solid with the current falling linearly to zero at the separator (uniform reaction):
+		// collector to electrode mean i·L/(3σ_eff), mean to separator face i·L/(6σ_eff), σ_eff = σ·(1 − porosity)^b
+		// (format). On charge the solid potential rises toward the separator, so the anode potential there is higher.
+		const sigmaN = 1;
+		const sigmaP = 0.2;
+		const cell = bareCell({
+			negative: { rateConstant: 1, conductivity_S_per_m: sigmaN, conductivityBruggeman: 1.5 },
+			positive: { rateConstant: 1, conductivity_S_per_m: sigmaP, conductivityBruggeman: 2 }
+		});
+		const ref = bareCell({ negative: { rateConstant: 1 }, positive: { rateConstant: 1 } });
+		const I = 60;
+		const i = I / cell.electrodeArea_m2;
+		const effN = sigmaN * (1 - cell.negative.porosity) ** 1.5;
+		const effP = sigmaP * (1 - cell.positive.porosity) ** 2;
+		for (const electrolyte of ['ideal', 'full'] as const) {
+			const a = firstInstant(cell, I, { electrolyte });
+			const b = firstInstant(ref, I, { electrolyte });
+			const dV = i * (cell.negative.thickness_m / (3 * effN) + cell.positive.thickness_m / (3 * effP));
+			expect(Math.abs(a.voltage_V - b.voltage_V - dV)).toBeLessThan(1e-3 * dV);
+			const dA = (i * cell.negative.thickness_m) / (6 * effN);
+			expect(Math.abs(a.anodePotential_V - b.anodePotential_V - dA)).toBeLessThan(1e-3 * dA);
+		}
+	});
+});
+
+describe("Faraday's law, state of charge and the model's guards", () => {
+	it('should move the state of charge and the lithium in each electrode by exactly the charge passed', () => {
+		// Faraday: ΔSOC = ∫I dt / capacity; lithium into the negative (as charge) = ∫I dt = lithium out of the positive.
+		const cell = demoNmcPouch;
+		const cap_C = cellWindow(cell, 1).capacity_Ah * 3600;
+		for (const electrolyte of ['full', 'ideal'] as const) {
+			const m = new CellModel(cell, 1, { electrolyte });
+			m.setSoc(0.3);
+			expect(m.soc()).toBeCloseTo(0.3, 12);
+			const li0 = m.lithiumCharge_C();
+			let predicted = NaN;
+			for (let k = 0; k < 300; k++) {
+				m.prepare(2, T25);
+				predicted = m.evaluate(90).soc;
+				m.commit(90);
+			}
+			expect(predicted).toBeCloseTo(m.soc(), 12);
+			expect(m.soc() - 0.3).toBeCloseTo((90 * 600) / cap_C, 9);
+			const li1 = m.lithiumCharge_C();
+			expect(li1.negative_C - li0.negative_C).toBeCloseTo(90 * 600, 4);
+			expect(li1.positive_C - li0.positive_C).toBeCloseTo(-90 * 600, 4);
+		}
+	});
+
+	it('should count a surface stoichiometry held inside 0…1 and stay finite when driven past the window', () => {
+		// Every clamp that binds is counted (and reported as a note by the simulation).
+		const m = new CellModel(demoNmcPouch, 1);
+		m.setSoc(0.97);
+		let last = { voltage_V: 0, anodePotential_V: 0 };
+		for (let k = 0; k < 120; k++) {
+			m.prepare(1, T25);
+			last = { ...m.evaluate(300) };
+			m.commit(300);
+		}
+		expect(m.clamps.stoichiometry).toBeGreaterThan(0);
+		expect(Number.isFinite(last.voltage_V)).toBe(true);
+		expect(Number.isFinite(last.anodePotential_V)).toBe(true);
+		const calm = new CellModel(demoNmcPouch, 1);
+		calm.setSoc(0.5);
+		for (let k = 0; k < 60; k++) {
+			calm.prepare(1, T25);
+			calm.evaluate(60);
+			calm.commit(60);
+		}
+		expect(calm.clamps).toEqual({ stoichiometry: 0, electrolyteFloor: 0 });
+	});
+
+	it('should predict a depleted electrolyte to the controller and hold the floor when a step is forced through', () => {
+		// Depletion is a limit on current: evaluate() reports the concentration the step would reach (negative here),
+		// and a committed step without a controller (a replayed log) holds the floor and counts it.
+		const cell = demoNmcPouch;
+		const m = new CellModel(cell, 1);
+		m.setSoc(0.5);
+		m.prepare(30, T25);
+		const o = m.evaluate(3000);
+		expect(o.minElectrolyte_mol_m3).toBeLessThan(0);
+		expect(Number.isFinite(o.voltage_V)).toBe(true);
+		expect(m.electrolyteFloor_mol_m3).toBeCloseTo(0.001 * cell.electrolyte.concentration_mol_m3, 12);
+		m.commit(3000);
+		expect(m.clamps.electrolyteFloor).toBe(1);
+		expect(Math.min(...m.electrolyte.c)).toBeGreaterThanOrEqual(m.electrolyteFloor_mol_m3);
+		// A floor given in the cell file is used as given.
+		const own = new CellModel({ ...cell, limits: { ...cell.limits, minElectrolyteConcentration_mol_m3: 250 } }, 1);
+		expect(own.electrolyteFloor_mol_m3).toBe(250);
+	});
+
+	it('should refuse to compute through a transport correlation that leaves its range, naming the field', () => {
+		// Bad input is refused with the field named: κ = 1 − 0.5·x (x = c/1000 mol/m³) is negative above 2000 mol/m³,
+		// which a long charge reaches in the positive electrode (salt is produced there on charge).
+		const cell = { ...demoNmcPouch, electrolyte: { ...demoNmcPouch.electrolyte, conductivityModel: { kind: 'power-series', terms: [{ coefficient: 1, power: 0 }, { coefficient: -0.5, power: 1 }] } } } as CellParams;
+		const m = new CellModel(cell, 1);
+		m.setSoc(0.3);
+		const run = () => {
+			for (let k = 0; k < 200; k++) {
+				m.prepare(5, T25);
+				m.evaluate(400);
+				m.commit(400);
+			}
+		};
+		expect(run).toThrowError(/electrolyte conductivity is -?[\d.]+ at \d+ mol\/m³/);
+		try {
+			run();
+		} catch (e) {
+			expect((e as { field?: string }).field).toBe('cell.electrolyte.conductivityModel');
+		}
+	});
+
+	it('should take its mesh from the options: particle shells (also given as a number) and 20 | 10 | 20 electrolyte cells by default', () => {
+		expect(new CellModel(demoNmcPouch, 1).negative.shells).toBe(20);
+		expect(new CellModel(demoNmcPouch, 1, 12).negative.shells).toBe(12);
+		expect(new CellModel(demoNmcPouch, 1, { shells: 8 }).positive.shells).toBe(8);
+		expect(new CellModel(demoNmcPouch, 1).electrolyte.n).toBe(50);
+		expect(new CellModel(demoNmcPouch, 1, { electrolyteCells: { negative: 4, separator: 3, positive: 5 } }).electrolyte.n).toBe(12);
 	});
 });

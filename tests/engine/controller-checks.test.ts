@@ -230,6 +230,10 @@ describe('drive, dwell and pre-conditioning', () => {
 		const r = simulate(input({ ambient_K: C(-10), drive: { duration_s: 900, profile: { kind: 'constant', power_W: 20_000 } } }, { leadTime_s: 1800, coolantSetpoint_K: C(30) }));
 		expect(r.summary.effectiveLeadTime_s).toBe(900);
 		expect(r.summary.notes).toContain('lead time 30 min is longer than the 15 min drive; pre-conditioning starts at departure');
+		// Exactly as long as the drive: nothing to clamp, no note.
+		const equal = simulate(input({ ambient_K: C(-10), drive: { duration_s: 900, profile: { kind: 'constant', power_W: 20_000 } } }, { leadTime_s: 900, coolantSetpoint_K: C(30) }));
+		expect(equal.summary.effectiveLeadTime_s).toBe(900);
+		expect(equal.summary.notes.some((n) => n.startsWith('lead time'))).toBe(false);
 		const base = simulate(input({ ambient_K: C(-10) }));
 		expect(base.summary.effectiveLeadTime_s).toBe(0);
 		expect(base.summary.baseline).toBe(true);
@@ -362,4 +366,70 @@ describe('series and summary bookkeeping', () => {
 		// Heat pump: heat delivered ≥ electrical energy (COP ≥ 1).
 		expect(e.heaterHeat_Wh).toBeGreaterThanOrEqual(r.summary.heaterEnergyDrive_Wh + r.summary.heaterEnergyCharge_Wh - 1e-9);
 	});
+	it("should keep the heater within the strategy's power cap", () => {
+		// strategy.heaterPowerCap_W: an electrical cap on the heater (docs/scenario-format.md).
+		const r = simulate(input({ ambient_K: C(-20) }, { leadTime_s: 1200, coolantSetpoint_K: C(35), heaterPowerCap_W: 2500 }, { seriesInterval_s: 5 }));
+		const s = r.series!;
+		const t0 = s.t_s.findIndex((t) => t > -1200);
+		expect(Math.max(...s.heaterPower_W)).toBeLessThanOrEqual(2500 + 1e-6);
+		// Far from the set-point the capped heater runs flat out.
+		expect(s.heaterPower_W[t0 + 2]).toBeCloseTo(2500, 6);
+		const uncapped = simulate(input({ ambient_K: C(-20) }, { leadTime_s: 1200, coolantSetpoint_K: C(35) }, { seriesInterval_s: 5 })).series!;
+		expect(Math.max(...uncapped.heaterPower_W)).toBeGreaterThan(2500);
+	});
+
+	it('should not heat during the charge when the pack has no charge-heating target', () => {
+		// defaultPolicy.chargeHeatTarget_K = null: no heating (schema comment).
+		const pack = { ...input().pack, defaultPolicy: { ...input().pack.defaultPolicy, chargeHeatTarget_K: null } };
+		const s = simulate({ ...input({ ambient_K: C(-10) }), pack }).summary;
+		expect(s.heaterEnergyCharge_Wh + s.heaterEnergyDrive_Wh).toBe(0);
+	});
+
+	it('should keep chill protection active under a pre-conditioning strategy', () => {
+		// docs/scenario-format.md: when the cells pass chillAbove_K the controller chills toward chillSetpoint_K under
+		// any strategy (and does not heat meanwhile).
+		const pack = input().pack;
+		const r = simulate(input(soaked(38, { arrivalSoc: 0.2, initialPackTemp_K: C(38) }), { leadTime_s: 0, coolantSetpoint_K: C(45) }, { seriesInterval_s: 1 }));
+		const s = r.series!;
+		let rows = 0;
+		for (const i of chargeIdx(r)) {
+			if (s.cellTempMax_K[i] > pack.defaultPolicy.chillAbove_K + 0.5) {
+				rows++;
+				expect(s.heaterPower_W[i]).toBe(0);
+				expect(s.chillerPower_W[i]).toBeGreaterThan(0);
+			}
+		}
+		expect(rows).toBeGreaterThan(30);
+	});
+
+	it('should report the pack power at the mean group voltage, between the lowest and the highest group', () => {
+		// P = n·I·V̄ with V̄ the share-weighted group voltage; the series voltage is the highest group while charging
+		// and the lowest while driving, so P/(n·I) lies on the right side of it.
+		const r = simulate(input({ ambient_K: C(25), drive: { duration_s: 600, profile: { kind: 'constant', power_W: 40_000 } }, dwell_s: 0 }, null, { seriesInterval_s: 1 }));
+		const s = r.series!;
+		const n = nCells(input().pack);
+		let charge = 0;
+		let drive = 0;
+		for (let i = 1; i < s.t_s.length; i++) {
+			if (Math.abs(s.current_A[i]) < 1) continue;
+			const vMean = s.packPower_W[i] / (n * s.current_A[i]);
+			if (s.phase[i] === 'charge') {
+				charge++;
+				expect(vMean).toBeLessThanOrEqual(s.voltage_V[i] + 1e-9);
+			} else if (s.phase[i] === 'drive' && s.t_s[i] < 0) {
+				drive++;
+				expect(vMean).toBeGreaterThanOrEqual(s.voltage_V[i] - 1e-9);
+			}
+		}
+		expect(charge).toBeGreaterThan(100);
+		expect(drive).toBeGreaterThan(100);
+	});
+
+	it('should generate more heat with the heat of mixing on than off over the same run', () => {
+		// Thomas & Newman (2003): the relaxation of the particles' gradients releases heat that the usual Bernardi form
+		// leaves out; over a run with a dwell the option adds it.
+		const run = (heatOfMixing: boolean) => simulate(input({ ambient_K: C(25), dwell_s: 900 }, null, { keepSeries: false, heatOfMixing })).summary.energyBalance.heatGenerated_Wh;
+		expect(run(true)).toBeGreaterThan(run(false) * 1.01);
+	});
 });
+

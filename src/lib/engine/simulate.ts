@@ -667,9 +667,11 @@ class Simulation {
 		if (this.anodeMin < this.minAnode_V) this.minAnode_V = this.anodeMin;
 		if (this.vMax > this.maxChargeV) this.maxChargeV = this.vMax;
 		const anodeFloor = useAnode ? lim.anodePotentialMargin_V - CONTROL_TOLERANCE.anode_V : 0;
-		this.excursion('voltage', this.vMax - (lim.maxVoltage_V + CONTROL_TOLERANCE.voltage_V), this.vMax, I);
-		this.excursion('temp', this.tMaxPred - (lim.maxTemp_K + CONTROL_TOLERANCE.temp_K), this.tMaxPred, I);
-		this.excursion('anode', anodeFloor - this.anodeMin, this.anodeMin, I);
+		// The predicted values hold at the end of the step.
+		const end_s = this.t_s + dt * frac;
+		this.excursion('voltage', this.vMax - (lim.maxVoltage_V + CONTROL_TOLERANCE.voltage_V), this.vMax, I, end_s);
+		this.excursion('temp', this.tMaxPred - (lim.maxTemp_K + CONTROL_TOLERANCE.temp_K), this.tMaxPred, I, end_s);
+		this.excursion('anode', anodeFloor - this.anodeMin, this.anodeMin, I, end_s);
 		const stepDt = dt * frac;
 		if (frac < 1) {
 			// Re-prepare a shorter last step so the state ends exactly at the target.
@@ -689,10 +691,9 @@ class Simulation {
 	}
 
 	/** Track a limit's worst excursion (`over` > 0 = beyond its tolerance) with the time it happened. */
-	private excursion(which: 'voltage' | 'anode' | 'temp', over: number, value: number, I: number): void {
+	private excursion(which: 'voltage' | 'anode' | 'temp', over: number, value: number, I: number, t: number): void {
 		if (!(over > 0)) return;
 		const e = this.excursions[which];
-		const t = this.t_s;
 		if (!e) {
 			this.excursions[which] = { first_s: t, worst: value, worst_s: t, atZeroCurrent: I === 0 };
 			return;

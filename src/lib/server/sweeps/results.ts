@@ -20,6 +20,7 @@ import type { ScenarioKey } from '../../engine/sweep-grid';
 import { STORED_SERIES_INTERVAL_S } from '../queue/jobs';
 import { chunkJobId } from '../queue/names';
 import { SimulationPool } from '../queue/thread-pool';
+import { defaultWorkerNice } from '../queue/worker-process';
 import { inFlightSimulations } from './registry';
 import { planFor } from './service';
 import { scenarioInputsFor, strategyInput, type SweepInputs } from './inputs';
@@ -311,7 +312,8 @@ export async function pointSeries(sweep: Sweep, pointIdRaw: string | number): Pr
 	const plan = planFor(sweep);
 	const inputs = scenarioInputsFor(plan.inputs, plan.scenarios[point.scenario_index]);
 	const strategy = point.strategy_index === null ? null : strategyInput(plan.definition, point.strategy_index);
-	seriesPool ??= new SimulationPool(1);
+	// One thread at the worker's lower priority: a recomputation never delays other requests.
+	seriesPool ??= new SimulationPool(1, { nice: defaultWorkerNice() });
 	const [one] = await seriesPool.run<{ pointId: number; gzipBase64: string }[]>({
 		kind: 'series',
 		data: {

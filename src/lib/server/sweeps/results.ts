@@ -22,6 +22,7 @@ import { chunkJobId } from '../queue/names';
 import { SimulationPool } from '../queue/thread-pool';
 import { defaultWorkerNice } from '../queue/worker-process';
 import { inFlightSimulations } from './registry';
+import { sweepBody } from './http-cache';
 import { planFor } from './service';
 import { scenarioInputsFor, strategyInput, type SweepInputs } from './inputs';
 import { SweepInputError } from './request';
@@ -368,4 +369,14 @@ export async function sweepCalibration(sweep: Sweep, rule: CalibrationRule, form
 	);
 	const table = calibrationTable(calibrations, rule);
 	return format === 'csv' ? calibrationCsv(table) : calibrationJson(table);
+}
+
+/** Cache key of a calibration body (see http-cache.ts). */
+export function calibrationKey(rule: CalibrationRule, format: 'csv' | 'json'): string {
+	return `calibration:${format}:${rule.kind}:${rule.kind === 'fastest-within' ? rule.maxEnergy_Wh : ''}`;
+}
+
+/** sweepCalibration, computed once per rule and format for a finished sweep. */
+export function cachedSweepCalibration(sweep: Sweep, rule: CalibrationRule, format: 'csv' | 'json'): Promise<string> {
+	return sweepBody(sweep, calibrationKey(rule, format), () => sweepCalibration(sweep, rule, format));
 }

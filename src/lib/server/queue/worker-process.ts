@@ -21,6 +21,8 @@ export interface WorkerProcessOptions {
 	log?: (msg: string) => void;
 	/** How long to wait for the first start, ms (default 60 s). */
 	startTimeout_ms?: number;
+	/** Drop the child's standard output (its per-chunk log); errors still show. */
+	quiet?: boolean;
 }
 
 export interface WorkerProcessHandle {
@@ -68,7 +70,7 @@ export async function startWorkerProcess(opts: WorkerProcessOptions): Promise<Wo
 	const spawnOnce = (): Promise<void> =>
 		new Promise<void>((resolve, reject) => {
 			// Plain node (no loader flags of a parent under tsx); output goes where ours goes.
-			const proc = fork(entry, [], { env, execArgv: [], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
+			const proc = fork(entry, [], { env, execArgv: [], stdio: ['ignore', opts.quiet ? 'ignore' : 'inherit', 'inherit', 'ipc'] });
 			child = proc;
 			let ready = false;
 			proc.on('message', (m: { type?: string; workerId?: string }) => {

@@ -51,6 +51,8 @@ export interface SweepRuntimeOptions {
 	threads?: number;
 	/** Its nice value when it is a child process (default PARETHERM_WORKER_NICE or 10). */
 	workerNice?: number;
+	/** Drop the child process's per-chunk log (benchmarks). */
+	quietWorker?: boolean;
 	reconcileInterval_ms?: number;
 }
 
@@ -81,7 +83,7 @@ const workerLog = (m: string) => console.log(`[paretherm worker] ${m}`);
 
 async function startLocalWorker(target: RedisTarget, opts: SweepRuntimeOptions): Promise<LocalWorker> {
 	if (opts.workerProcess ?? workerProcessWanted()) {
-		const h = await startWorkerProcess({ target, threads: opts.threads, nice: opts.workerNice, log });
+		const h = await startWorkerProcess({ target, threads: opts.threads, nice: opts.workerNice, quiet: opts.quietWorker, log });
 		return { get workerId() { return h.workerId; }, threads: h.threads, mode: 'process', close: (t) => h.close(t) };
 	}
 	const h = await startSweepWorker({ target, threads: opts.threads, log: workerLog });

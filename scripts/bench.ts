@@ -249,4 +249,4 @@ rows.push({ figure: '480-point reference grid, one thread, no queue', measured: 
 console.log(`\nEngine figures against their targets (load average ${loadBefore} before, ${loadAvg()} after):`);
 const w = Math.max(...rows.map((r) => r.figure.length));
 for (const r of rows)
-	console.log(`  ${r.figure.padEnd(w)}  ${r.measured.padStart(12)}   target ${r.target.padEnd(12)} ${r.met === null ? '' : r.met ? 'met' : 'NOT met'}`);
+	console.log(`  ${r.figure.padEnd(w)}  ${r.measured.padStart(12)}   ${r.met === null ? `(${r.target})` : `target ${r.target.padEnd(9)} ${r.met ? 'met' : 'NOT met'}`}`);

@@ -138,6 +138,13 @@ export async function runLoad(opts: LoadOptions): Promise<LoadReport> {
 			`/api/programs/${programId}/sweeps/${finished.id}/points?limit=200`,
 			`/api/programs/${programId}/sweeps/${running}/points?limit=200`
 		];
+		// One read of each path first: the server loads a route's modules on its first request,
+		// which is start-up, not the steady state the figures describe.
+		for (const p of paths) {
+			const warm = await fetch(base + p, { headers: { ...headers, accept: p.startsWith('/api/') ? 'application/json' : 'text/html' } });
+			if (warm.status !== 200) throw new Error(`warming up ${p} answered ${warm.status}`);
+			await warm.arrayBuffer();
+		}
 		log(`${opts.connections} connections for ${opts.duration_s} s on ${base}, sweep ${running} running (${before.status}, ${before.progress.percent} %) …`);
 		const times: number[] = [];
 		const byPath = new Map<string, number[]>();

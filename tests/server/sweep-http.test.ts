@@ -115,6 +115,20 @@ describe('sweeps over HTTP on the built app', () => {
 		expect(anonymous.status).toBe(401);
 	});
 
+	it('should page the sweep list by sweep number and refuse a malformed page marker', async () => {
+		const first = await engineer.get(`/programs/${programId}/sweeps`);
+		expect(first.status).toBe(200);
+		expect(await first.text()).toContain('HTTP test sweep');
+		const older = await engineer.get(`/programs/${programId}/sweeps?before=${finishedId}`);
+		expect(older.status).toBe(200);
+		const html = await older.text();
+		expect(html).not.toContain('HTTP test sweep');
+		expect(html).toContain('Newest sweeps');
+		const bad = await engineer.get(`/programs/${programId}/sweeps?before=abc`);
+		expect(bad.status).toBe(400);
+		expect(await bad.text()).toContain('“before” must be a sweep number');
+	});
+
 	it('should answer JSON errors with the field at fault', async () => {
 		const bad = await engineer.json(`/api/programs/${programId}/sweeps`, 'POST', { scenarioId: 'hot-afternoon-return', definition: {} });
 		expect(bad.status).toBe(400);

@@ -132,8 +132,10 @@ export function sweepStatus(sweep: Sweep, withInputs = true): SweepStatusView {
 	};
 }
 
-export async function listSweeps(programId: number, limit = 100): Promise<SweepStatusView[]> {
-	const rows = await Sweep.findAll({ where: { program_id: programId }, order: [['id', 'DESC']], limit });
+/** Newest first; `beforeId` pages back (sweeps with a smaller id). */
+export async function listSweeps(programId: number, limit = 100, beforeId?: number): Promise<SweepStatusView[]> {
+	const where = beforeId === undefined ? { program_id: programId } : { program_id: programId, id: { [Op.lt]: beforeId } };
+	const rows = await Sweep.findAll({ where, order: [['id', 'DESC']], limit });
 	return rows.map((s) => sweepStatus(s, false));
 }
 

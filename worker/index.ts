@@ -7,11 +7,19 @@
  *   REDIS_URL                 redis://host:6379 (or unix:///path/to/redis.sock) — the web app's Redis.
  *                             Unset: the private server of a local web app (<PARETHERM_DATA_DIR>/redis/redis.sock).
  *   PARETHERM_WORKER_THREADS  simulation threads (default: the number of CPU cores).
+ *   PARETHERM_WORKER_NICE     OS priority (nice, 0–19) of the process and its threads (default 0;
+ *                             the web app starts its own worker child at 10).
+ *
+ * Runs compiled: `npm run build` writes build/worker/index.mjs (scripts/build-workers.mjs), which
+ * `npm run worker` starts. When started by the web app (an IPC channel to it exists) it reports
+ * { type: 'ready' } once it consumes the queue, and exits when that channel closes (the web
+ * process is gone, even by SIGKILL), so it never outlives the app that owns it.
  */
 import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import { targetFromEnv, describeTarget, type RedisTarget } from '../src/lib/server/queue/connection';
-import { startSweepWorker } from '../src/lib/server/queue/worker-runtime';
+import { startSweepWorker, type SweepWorkerHandle } from '../src/lib/server/queue/worker-runtime';
 
 function resolveTarget(): RedisTarget {
 	const fromEnv = targetFromEnv();
@@ -26,29 +34,62 @@ function resolveTarget(): RedisTarget {
 	process.exit(2);
 }
 
-async function main() {
-	const target = resolveTarget();
-	console.log(`[paretherm worker] connecting to ${describeTarget(target)}`);
-	const handle = await startSweepWorker({ target });
+/** Lower this process's priority before any thread starts (threads inherit it on Linux). */
+function lowerPriority(): number {
+	const wanted = Number(process.env.PARETHERM_WORKER_NICE ?? 0);
+	if (!Number.isInteger(wanted) || wanted < 0 || wanted > 19) {
+		console.error(`[paretherm worker] PARETHERM_WORKER_NICE must be a whole number from 0 to 19 (got “${process.env.PARETHERM_WORKER_NICE}”).`);
+		process.exit(2);
+	}
+	try {
+		if (wanted > os.getPriority(0)) os.setPriority(0, wanted);
+		return os.getPriority(0);
+	} catch (e) {
+		console.error(`[paretherm worker] could not lower the priority to nice ${wanted}: ${(e as Error).message}`);
+		return wanted;
+	}
+}
 
-	let stopping = false;
-	const stop = (signal: string) => {
-		if (stopping) {
-			console.log(`[paretherm worker] ${signal} again: exiting now`);
+let handle: SweepWorkerHandle | null = null;
+let stopping = false;
+
+function stop(signal: string): void {
+	if (stopping) {
+		console.log(`[paretherm worker] ${signal} again: exiting now`);
+		process.exit(1);
+	}
+	stopping = true;
+	if (!handle) process.exit(0); // still starting: nothing taken yet
+	console.log(`[paretherm worker] ${signal}: finishing running chunks, then exiting`);
+	handle
+		.close()
+		.then(() => process.exit(0))
+		.catch((e) => {
+			console.error('[paretherm worker] error while closing:', e);
 			process.exit(1);
-		}
-		stopping = true;
-		console.log(`[paretherm worker] ${signal}: finishing running chunks, then exiting`);
-		handle
-			.close()
-			.then(() => process.exit(0))
-			.catch((e) => {
-				console.error('[paretherm worker] error while closing:', e);
-				process.exit(1);
-			});
-	};
+		});
+}
+
+async function main() {
 	process.on('SIGINT', () => stop('SIGINT'));
 	process.on('SIGTERM', () => stop('SIGTERM'));
+	// Started by the web app: its exit (even a SIGKILL) closes the channel. Running chunks are
+	// dropped; their locks expire and another worker retries them.
+	if (process.send)
+		process.once('disconnect', () => {
+			console.log('[paretherm worker] the web process that started this worker is gone: exiting');
+			setTimeout(() => process.exit(0), 3_000).unref();
+			if (!handle) process.exit(0);
+			void handle.close(0).finally(() => process.exit(0));
+		});
+
+	const nice = lowerPriority();
+	const target = resolveTarget();
+	console.log(`[paretherm worker] connecting to ${describeTarget(target)}${nice ? ` (nice ${nice})` : ''}`);
+	const started = await startSweepWorker({ target, nice });
+	handle = started;
+	if (stopping) return void started.close().finally(() => process.exit(0));
+	if (process.connected) process.send?.({ type: 'ready', workerId: started.workerId, threads: started.threads });
 }
 
 main().catch((e) => {

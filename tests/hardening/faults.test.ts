@@ -1,6 +1,6 @@
 /**
- * Faults with the production layout: the BUILT web app (no in-process worker) and separate
- * `worker/index.ts` processes share a real redis-server this test starts (append-only file,
+ * Faults with the production layout: the BUILT web app (no worker of its own) and separate
+ * compiled worker processes (`npm run worker`) share a real redis-server this test starts (append-only file,
  * fsync always), and mail goes through an SMTP server that refuses everything until told otherwise.
  *
  * In turn: a worker is SIGKILLed in the middle of a chunk, Redis is frozen (SIGSTOP) for a few
@@ -107,8 +107,8 @@ const workers: WorkerProc[] = [];
 const TIMINGS = { PARETHERM_JOB_LOCK_MS: '3000', PARETHERM_STALLED_CHECK_MS: '1000' };
 
 function startWorker(): WorkerProc {
-	// node with tsx's loader (not the tsx CLI, whose child would survive a SIGKILL of the CLI).
-	const proc = spawn(process.execPath, ['--import', 'tsx', 'worker/index.ts'], {
+	// The compiled worker (`npm run worker`), started by node itself so a SIGKILL reaches it.
+	const proc = spawn(process.execPath, ['build/worker/index.mjs'], {
 		cwd: ROOT,
 		env: { ...process.env, REDIS_URL: redisUrl(), PARETHERM_WORKER_THREADS: '1', ...TIMINGS, ...gate.env },
 		stdio: ['ignore', 'pipe', 'pipe']

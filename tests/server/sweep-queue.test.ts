@@ -1,7 +1,7 @@
 /**
  * The sweep queue end to end on a REAL redis-server (BullMQ does not run on ioredis-mock): this
  * process is the web side (producer, result persistence), and two separate worker processes
- * (`tsx worker/index.ts`, one simulation thread each) share one sweep. Every grid point must be
+ * (the compiled `npm run worker` program, one simulation thread each) share one sweep. Every grid point must be
  * computed exactly once, every chunk must report progress, and the sweep's progress must rise
  * monotonically to 100 %.
  *
@@ -19,7 +19,7 @@ process.env.PARETHERM_DATA_DIR = fs.mkdtempSync(path.join(os.tmpdir(), 'parether
 process.env.PARETHERM_IN_PROCESS_WORKER = '0';
 process.env.PARETHERM_QUEUE_PREFIX = `ptest${process.pid}`;
 
-const { startTestRedis, seedSweepProgram, smallSweepRequest, waitFor, ROOT, TSX } = await import('../helpers/sweeps');
+const { startTestRedis, seedSweepProgram, smallSweepRequest, waitFor, ROOT } = await import('../helpers/sweeps');
 const { ChunkGate } = await import('../helpers/chunk-gate');
 const gate = ChunkGate.create(2, process.env.PARETHERM_DATA_DIR);
 type TestRedis = Awaited<ReturnType<typeof startTestRedis>>;
@@ -31,7 +31,7 @@ interface WorkerProc {
 }
 
 function startWorker(redisUrl: string): WorkerProc {
-	const proc = spawn(TSX, ['worker/index.ts'], {
+	const proc = spawn(process.execPath, ['build/worker/index.mjs'], {
 		cwd: ROOT,
 		env: { ...process.env, REDIS_URL: redisUrl, PARETHERM_WORKER_THREADS: '1', ...gate.env },
 		stdio: ['ignore', 'pipe', 'pipe']

@@ -1,34 +1,51 @@
 /**
- * Worker-thread entry: runs engine simulations for the pool in thread-pool.ts, one request at a
- * time, so the owning process's event loop stays free to renew BullMQ job locks and answer HTTP.
- * Loaded through tsx's loader (registered by the pool's bootstrap), hence relative imports only.
+ * Simulation thread entry, compiled to build/worker/sim-thread.mjs (scripts/build-workers.mjs) and
+ * run by the piscina pool in thread-pool.ts: one task at a time per thread, so the owning
+ * process's event loop stays free to renew BullMQ job locks and answer HTTP.
+ *
+ * A task may carry a MessagePort for progress ({ done, total } after each simulation) and a nice
+ * value: the thread lowers its own OS priority to at least that (on Linux the nice value is per
+ * thread), so simulations yield to the web server's requests.
  */
-import { parentPort } from 'node:worker_threads';
+import os from 'node:os';
+import { threadId, type MessagePort } from 'node:worker_threads';
 import { computeChunk, computeFrontSeries } from './compute';
 import type { ChunkJobData, SeriesJobData } from './jobs';
 
-export type ThreadRequest =
-	| { id: number; kind: 'chunk'; data: ChunkJobData }
-	| { id: number; kind: 'series'; data: SeriesJobData };
+interface TaskCommon {
+	/** Lower this thread's priority to at least this nice value (0–19). */
+	nice?: number;
+	progress?: MessagePort;
+}
 
-export type ThreadMessage =
-	| { type: 'ready' }
-	| { type: 'progress'; id: number; done: number; total: number }
-	| { type: 'result'; id: number; result: unknown }
-	| { type: 'error'; id: number; message: string; stack?: string };
+export type ThreadTask =
+	| (TaskCommon & { kind: 'chunk'; data: ChunkJobData })
+	| (TaskCommon & { kind: 'series'; data: SeriesJobData })
+	| (TaskCommon & { kind: 'ping' });
 
-const port = parentPort;
-if (!port) throw new Error('sim-thread.ts must be started as a worker thread by thread-pool.ts.');
+export interface PingResult {
+	threadId: number;
+	nice: number | null;
+}
 
-port.on('message', (req: ThreadRequest) => {
-	const progress = (done: number, total: number) => port.postMessage({ type: 'progress', id: req.id, done, total } satisfies ThreadMessage);
+function applyNice(nice: number | undefined): number | null {
 	try {
-		const result = req.kind === 'chunk' ? computeChunk(req.data, progress) : computeFrontSeries(req.data, progress);
-		port.postMessage({ type: 'result', id: req.id, result } satisfies ThreadMessage);
-	} catch (e) {
-		const err = e instanceof Error ? e : new Error(String(e));
-		port.postMessage({ type: 'error', id: req.id, message: err.message, stack: err.stack } satisfies ThreadMessage);
+		const now = os.getPriority(0);
+		if (nice !== undefined && nice > now) os.setPriority(0, Math.min(19, nice));
+		return os.getPriority(0);
+	} catch {
+		return null; // not permitted or not supported here: run at the inherited priority
 	}
-});
+}
 
-port.postMessage({ type: 'ready' } satisfies ThreadMessage);
+export default function runTask(task: ThreadTask): unknown {
+	if (task.nice) applyNice(task.nice);
+	if (task.kind === 'ping') return { threadId, nice: applyNice(undefined) } satisfies PingResult;
+	const port = task.progress;
+	const progress = port ? (done: number, total: number) => port.postMessage({ done, total }) : undefined;
+	try {
+		return task.kind === 'chunk' ? computeChunk(task.data, progress) : computeFrontSeries(task.data, progress);
+	} finally {
+		port?.close();
+	}
+}

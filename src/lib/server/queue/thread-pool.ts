@@ -1,75 +1,18 @@
 /**
- * A fixed pool of worker threads running sim-thread.ts. One request per thread at a time; extra
- * requests wait in FIFO order. A thread that dies takes only its own request down (rejected with
- * the reason) and is replaced.
+ * The simulation thread pool: piscina running the compiled thread entry
+ * (build/worker/sim-thread.mjs, see compiled.ts), a fixed number of threads, one task per thread
+ * at a time; extra tasks wait in FIFO order. A thread that dies takes only its own task down
+ * (rejected with the reason) and piscina starts a replacement.
  *
- * Why a bootstrap instead of `new Worker('sim-thread.ts')`: the engine is TypeScript, and the
- * thread must load it the same way whether the parent runs under tsx (`npm run worker`), vitest,
- * or the Vite-built web server (plain node, where this module is bundled and sim-thread.ts stays
- * in the source tree). The bootstrap registers tsx's ESM loader inside the thread, then imports
- * the entry by absolute file URL.
+ * Progress travels over a MessageChannel per task, so a chunk can report after each simulation.
  */
-import { Worker } from 'node:worker_threads';
-import { createRequire } from 'node:module';
-import fs from 'node:fs';
 import os from 'node:os';
-import path from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
-import type { ThreadMessage, ThreadRequest } from './sim-thread';
+import { MessageChannel } from 'node:worker_threads';
+import { Piscina } from 'piscina';
+import { compiledFile } from './compiled';
+import type { PingResult, ThreadTask } from './sim-thread';
 
-type RequestBody = ThreadRequest extends infer R ? (R extends { id: number } ? Omit<R, 'id'> : never) : never;
-
-interface Pending {
-	id: number;
-	body: RequestBody;
-	onProgress?: (done: number, total: number) => void;
-	resolve: (v: unknown) => void;
-	reject: (e: Error) => void;
-}
-
-interface Slot {
-	worker: Worker;
-	ready: boolean;
-	current: Pending | null;
-}
-
-/** Where sim-thread.ts is: beside this module when unbundled, else under the project root. */
-export function simThreadEntry(): string {
-	const candidates: string[] = [];
-	try {
-		candidates.push(path.join(path.dirname(fileURLToPath(import.meta.url)), 'sim-thread.ts'));
-	} catch {
-		// import.meta.url is not a file URL in some bundles; fall through to the project root.
-	}
-	const root = process.env.PARETHERM_ROOT ?? process.cwd();
-	candidates.push(path.join(root, 'src/lib/server/queue/sim-thread.ts'));
-	const found = candidates.find((c) => fs.existsSync(c));
-	if (!found)
-		throw new Error(
-			`Cannot find the simulation thread entry (looked at ${candidates.join(', ')}). ` +
-				'Start Paretherm from its project folder or set PARETHERM_ROOT to it.'
-		);
-	return found;
-}
-
-function tsxApiUrl(): string {
-	const roots = [process.env.PARETHERM_ROOT ?? process.cwd()];
-	try {
-		roots.unshift(path.dirname(fileURLToPath(import.meta.url)));
-	} catch {
-		/* bundled: use the working directory */
-	}
-	for (const root of roots) {
-		try {
-			const pkg = createRequire(path.join(root, 'noop.js')).resolve('tsx/package.json');
-			const api = path.join(path.dirname(pkg), 'dist/esm/api/index.mjs');
-			if (fs.existsSync(api)) return pathToFileURL(api).href;
-		} catch {
-			/* try the next root */
-		}
-	}
-	throw new Error('The simulation threads need the `tsx` package (a dependency of Paretherm); run `npm ci` in the project folder.');
-}
+type Body = ThreadTask extends infer T ? (T extends { kind: 'chunk' | 'series' } ? Omit<T, 'nice' | 'progress'> : never) : never;
 
 export function defaultThreadCount(): number {
 	const fromEnv = Number(process.env.PARETHERM_WORKER_THREADS);
@@ -77,123 +20,81 @@ export function defaultThreadCount(): number {
 	return typeof os.availableParallelism === 'function' ? os.availableParallelism() : os.cpus().length;
 }
 
+export interface SimulationPoolOptions {
+	/** Nice value the threads lower themselves to (0 = the owner's priority). */
+	nice?: number;
+	log?: (msg: string) => void;
+}
+
 export class SimulationPool {
 	readonly size: number;
-	private readonly slots: Slot[] = [];
-	private readonly queue: Pending[] = [];
-	private nextId = 1;
+	readonly nice: number;
+	private piscina: Piscina | null = null;
+	private starting: Promise<void> | null = null;
 	private closed = false;
-	private startupFailures = 0;
-	private readonly bootstrap: string;
-	private readyWaiters: { resolve: () => void; reject: (e: Error) => void }[] = [];
-	private readonly entryUrl: string;
-	private readonly tsxUrl: string;
+	private readonly log: (msg: string) => void;
+	/** Thread ids and nice values seen by the start-up ping. */
+	threads: PingResult[] = [];
 
-	constructor(size = defaultThreadCount()) {
+	constructor(size = defaultThreadCount(), opts: SimulationPoolOptions = {}) {
 		if (!Number.isInteger(size) || size < 1) throw new RangeError(`Thread count must be a positive whole number (got ${size}).`);
 		this.size = size;
-		this.entryUrl = pathToFileURL(simThreadEntry()).href;
-		this.tsxUrl = tsxApiUrl();
-		this.bootstrap =
-			`const { workerData } = require('node:worker_threads');` +
-			`import(workerData.tsxUrl).then((api) => { api.register(); return import(workerData.entryUrl); })` +
-			`.catch((e) => { console.error('[paretherm] simulation thread failed to load:', e); process.exit(1); });`;
-		for (let i = 0; i < size; i++) this.slots.push(this.spawn());
-	}
-
-	private spawn(): Slot {
-		const worker = new Worker(this.bootstrap, {
-			eval: true,
-			// Do not inherit the parent's --import/--require loader flags: the bootstrap registers tsx itself.
-			execArgv: [],
-			workerData: { tsxUrl: this.tsxUrl, entryUrl: this.entryUrl }
-		});
-		const slot: Slot = { worker, ready: false, current: null };
-		worker.on('message', (msg: ThreadMessage) => this.onMessage(slot, msg));
-		worker.on('error', (err) => this.onDeath(slot, err));
-		worker.on('exit', (code) => {
-			if (!this.closed) this.onDeath(slot, new Error(`simulation thread exited with code ${code}`));
-		});
-		return slot;
-	}
-
-	private onMessage(slot: Slot, msg: ThreadMessage): void {
-		if (msg.type === 'ready') {
-			slot.ready = true;
-			this.startupFailures = 0;
-			if (this.slots.every((s) => s.ready)) for (const w of this.readyWaiters.splice(0)) w.resolve();
-			this.dispatch();
-			return;
-		}
-		const cur = slot.current;
-		if (!cur || cur.id !== msg.id) return;
-		if (msg.type === 'progress') {
-			cur.onProgress?.(msg.done, msg.total);
-			return;
-		}
-		slot.current = null;
-		if (msg.type === 'result') cur.resolve(msg.result);
-		else {
-			const err = new Error(msg.message);
-			if (msg.stack) err.stack = msg.stack;
-			cur.reject(err);
-		}
-		this.dispatch();
-	}
-
-	private onDeath(slot: Slot, err: Error): void {
-		const idx = this.slots.indexOf(slot);
-		if (idx < 0) return; // already replaced (error and exit both fire)
-		if (!slot.ready) this.startupFailures++;
-		slot.current?.reject(new Error(`A simulation thread died while computing: ${err.message}`));
-		slot.current = null;
-		void slot.worker.terminate();
-		if (this.closed) return;
-		if (this.startupFailures >= 3) {
-			// The thread cannot even load (broken install or syntax error): fail fast, do not spin.
-			this.slots.splice(idx, 1);
-			const reason = new Error(`Simulation threads fail to start (${err.message}); see the log above.`);
-			if (this.slots.every((s) => !s.ready)) for (const p of this.queue.splice(0)) p.reject(reason);
-			for (const w of this.readyWaiters.splice(0)) w.reject(reason);
-			return;
-		}
-		this.slots[idx] = this.spawn();
-	}
-
-	private dispatch(): void {
-		for (const slot of this.slots) {
-			if (!slot.ready || slot.current || this.queue.length === 0) continue;
-			const next = this.queue.shift()!;
-			slot.current = next;
-			slot.worker.postMessage({ id: next.id, ...next.body } as ThreadRequest);
-		}
+		this.nice = Math.max(0, Math.min(19, Math.round(opts.nice ?? 0)));
+		this.log = opts.log ?? ((m) => console.error(`[paretherm] ${m}`));
 	}
 
 	/**
-	 * Resolves once every thread has loaded the engine (loading TypeScript in a fresh thread takes
-	 * a second or two), so a worker does not take jobs, and a benchmark does not start its clock,
-	 * before it can compute.
+	 * Resolves once every thread has loaded the compiled engine (one ping per thread, sent
+	 * together so each lands on its own thread), so a worker does not take jobs, and a benchmark
+	 * does not start its clock, before it can compute. Rejects when the threads cannot start.
 	 */
 	ready(): Promise<void> {
-		if (this.slots.length > 0 && this.slots.every((s) => s.ready)) return Promise.resolve();
-		return new Promise((resolve, reject) => this.readyWaiters.push({ resolve, reject }));
-	}
-
-	run<T>(body: RequestBody, onProgress?: (done: number, total: number) => void): Promise<T> {
-		if (this.closed) return Promise.reject(new Error('The simulation pool is closed.'));
-		if (this.slots.length === 0) return Promise.reject(new Error('Simulation threads fail to start; see the log.'));
-		return new Promise<T>((resolve, reject) => {
-			this.queue.push({ id: this.nextId++, body, onProgress, resolve: resolve as (v: unknown) => void, reject });
-			this.dispatch();
+		this.starting ??= this.start().catch((e) => {
+			this.starting = null;
+			throw e;
 		});
+		return this.starting;
 	}
 
-	/** Stops the threads; requests still waiting or running are rejected. */
+	private async start(): Promise<void> {
+		const filename = await compiledFile('sim-thread');
+		if (this.closed) throw new Error('The simulation pool is closed.');
+		const pool = new Piscina({
+			filename,
+			minThreads: this.size,
+			maxThreads: this.size,
+			concurrentTasksPerWorker: 1,
+			// Plain node in the threads: no loader flags of a parent started under tsx.
+			execArgv: [],
+			recordTiming: false
+		});
+		// Emitted for a thread error outside any task; tasks get their own rejection.
+		pool.on('error', (e: Error) => this.log(`simulation thread error: ${e.message}`));
+		this.piscina = pool;
+		this.threads = await Promise.all(Array.from({ length: this.size }, () => pool.run({ kind: 'ping', nice: this.nice } satisfies ThreadTask) as Promise<PingResult>));
+	}
+
+	async run<T>(body: Body, onProgress?: (done: number, total: number) => void): Promise<T> {
+		if (this.closed) throw new Error('The simulation pool is closed.');
+		await this.ready();
+		const pool = this.piscina!;
+		if (!onProgress) return (await pool.run({ ...body, nice: this.nice } as ThreadTask)) as T;
+		const { port1, port2 } = new MessageChannel();
+		port1.on('message', (m: { done: number; total: number }) => onProgress(m.done, m.total));
+		try {
+			return (await pool.run({ ...body, nice: this.nice, progress: port2 } as ThreadTask, { transferList: [port2] })) as T;
+		} finally {
+			// Progress still in flight is dropped: callers report completion themselves.
+			port1.close();
+		}
+	}
+
+	/** Stops the threads; tasks still waiting or running are rejected. */
 	async close(): Promise<void> {
 		this.closed = true;
-		const reason = new Error('The simulation pool was closed.');
-		for (const p of this.queue.splice(0)) p.reject(reason);
-		for (const s of this.slots) s.current?.reject(reason);
-		await Promise.all(this.slots.map((s) => s.worker.terminate()));
+		await this.starting?.catch(() => {});
+		const pool = this.piscina;
+		this.piscina = null;
+		await pool?.destroy();
 	}
 }

@@ -1,6 +1,7 @@
 /**
- * The BullMQ consumer shared by `npm run worker` (worker/index.ts) and the web process's
- * in-process worker. Compute runs in a SimulationPool of worker threads; the BullMQ worker's
+ * The BullMQ consumer of every worker process (worker/index.ts: `npm run worker` and the web
+ * app's own worker child) and of a worker kept inside a process (tests, benchmarks with
+ * PARETHERM_WORKER_PROCESS=0). Compute runs in a SimulationPool of worker threads; the BullMQ worker's
  * concurrency equals the thread count so every core has a chunk while this event loop stays free
  * to renew job locks (a blocked loop would let BullMQ think the job stalled and hand it to
  * another worker, computing it twice).
@@ -25,12 +26,15 @@ export interface SweepWorkerOptions {
 	log?: (msg: string) => void;
 	/** Label written into results (default hostname:pid). */
 	workerId?: string;
+	/** Nice value of the simulation threads (default PARETHERM_WORKER_NICE or 0). */
+	nice?: number;
 }
 
 export interface SweepWorkerHandle {
 	workerId: string;
 	threads: number;
-	worker: Worker;
+	/** The BullMQ worker (null when it runs in a child process: worker-process.ts). */
+	worker: Worker | null;
 	/** Finish the chunks in progress (up to `timeout_ms`), then stop threads and connections. */
 	close(timeout_ms?: number): Promise<void>;
 }
@@ -51,7 +55,8 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 	const log = opts.log ?? ((m: string) => console.log(`[paretherm worker] ${m}`));
 	const threads = opts.threads ?? defaultThreadCount();
 	const workerId = opts.workerId ?? `${os.hostname()}:${process.pid}`;
-	const pool = new SimulationPool(threads);
+	const nice = opts.nice ?? envInt('PARETHERM_WORKER_NICE') ?? 0;
+	const pool = new SimulationPool(threads, { nice, log });
 	await pool.ready();
 	const connection = createRedisClient(opts.target);
 	connection.on('error', (e) => log(`Redis connection error: ${e.message}`));
@@ -84,6 +89,7 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 			if (await isCancelled(redis, data.sweepId, data.queueToken))
 				return { sweepId: data.sweepId, chunkIndex: data.chunkIndex, cancelled: true, points: [], worker: workerId, attempt: job.attemptsMade + 1, elapsed_ms: 0 };
 			const points = await pool.run<ComputedPoint[]>({ kind: 'chunk', data }, progress);
+			progress(points.length, points.length);
 			const elapsed_ms = Date.now() - t0;
 			log(`sweep ${data.sweepId} chunk ${data.chunkIndex}: ${points.length} simulations in ${elapsed_ms} ms (attempt ${job.attemptsMade + 1})`);
 			return { sweepId: data.sweepId, chunkIndex: data.chunkIndex, cancelled: false, points, worker: workerId, attempt: job.attemptsMade + 1, elapsed_ms };
@@ -93,6 +99,7 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 			if (await isCancelled(redis, data.sweepId, data.queueToken))
 				return { sweepId: data.sweepId, scenarioIndex: data.scenarioIndex, cancelled: true, series: [], worker: workerId, elapsed_ms: 0 };
 			const series = await pool.run<{ pointId: number; gzipBase64: string }[]>({ kind: 'series', data }, progress);
+			progress(series.length, series.length);
 			const elapsed_ms = Date.now() - t0;
 			log(`sweep ${data.sweepId} scenario ${data.scenarioIndex}: ${series.length} front time series in ${elapsed_ms} ms`);
 			return { sweepId: data.sweepId, scenarioIndex: data.scenarioIndex, cancelled: false, series, worker: workerId, elapsed_ms };
@@ -116,7 +123,8 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 		if (job) log(`job ${job.id} failed (attempt ${job.attemptsMade} of ${job.opts.attempts ?? 1}): ${err.message}`);
 	});
 	await worker.waitUntilReady();
-	log(`worker ${workerId} consuming “${SWEEP_QUEUE}” with ${threads} simulation thread(s)`);
+	const niceNote = pool.threads.some((t) => t.nice) ? ` at nice ${pool.threads.map((t) => t.nice ?? '?').join('/')}` : '';
+	log(`worker ${workerId} consuming “${SWEEP_QUEUE}” with ${threads} simulation thread(s)${niceNote}`);
 
 	let closed: Promise<void> | null = null;
 	return {

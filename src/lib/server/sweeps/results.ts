@@ -20,7 +20,9 @@ import type { ScenarioKey } from '../../engine/sweep-grid';
 import { STORED_SERIES_INTERVAL_S } from '../queue/jobs';
 import { chunkJobId } from '../queue/names';
 import { SimulationPool } from '../queue/thread-pool';
+import { defaultWorkerNice } from '../queue/worker-process';
 import { inFlightSimulations } from './registry';
+import { sweepBody } from './http-cache';
 import { planFor } from './service';
 import { scenarioInputsFor, strategyInput, type SweepInputs } from './inputs';
 import { SweepInputError } from './request';
@@ -130,8 +132,10 @@ export function sweepStatus(sweep: Sweep, withInputs = true): SweepStatusView {
 	};
 }
 
-export async function listSweeps(programId: number, limit = 100): Promise<SweepStatusView[]> {
-	const rows = await Sweep.findAll({ where: { program_id: programId }, order: [['id', 'DESC']], limit });
+/** Newest first; `beforeId` pages back (sweeps with a smaller id). */
+export async function listSweeps(programId: number, limit = 100, beforeId?: number): Promise<SweepStatusView[]> {
+	const where = beforeId === undefined ? { program_id: programId } : { program_id: programId, id: { [Op.lt]: beforeId } };
+	const rows = await Sweep.findAll({ where, order: [['id', 'DESC']], limit });
 	return rows.map((s) => sweepStatus(s, false));
 }
 
@@ -311,7 +315,8 @@ export async function pointSeries(sweep: Sweep, pointIdRaw: string | number): Pr
 	const plan = planFor(sweep);
 	const inputs = scenarioInputsFor(plan.inputs, plan.scenarios[point.scenario_index]);
 	const strategy = point.strategy_index === null ? null : strategyInput(plan.definition, point.strategy_index);
-	seriesPool ??= new SimulationPool(1);
+	// One thread at the worker's lower priority: a recomputation never delays other requests.
+	seriesPool ??= new SimulationPool(1, { nice: defaultWorkerNice() });
 	const [one] = await seriesPool.run<{ pointId: number; gzipBase64: string }[]>({
 		kind: 'series',
 		data: {
@@ -366,4 +371,14 @@ export async function sweepCalibration(sweep: Sweep, rule: CalibrationRule, form
 	);
 	const table = calibrationTable(calibrations, rule);
 	return format === 'csv' ? calibrationCsv(table) : calibrationJson(table);
+}
+
+/** Cache key of a calibration body (see http-cache.ts). */
+export function calibrationKey(rule: CalibrationRule, format: 'csv' | 'json'): string {
+	return `calibration:${format}:${rule.kind}:${rule.kind === 'fastest-within' ? rule.maxEnergy_Wh : ''}`;
+}
+
+/** sweepCalibration, computed once per rule and format for a finished sweep. */
+export function cachedSweepCalibration(sweep: Sweep, rule: CalibrationRule, format: 'csv' | 'json'): Promise<string> {
+	return sweepBody(sweep, calibrationKey(rule, format), () => sweepCalibration(sweep, rule, format));
 }

@@ -5,11 +5,13 @@
  *   3. the queue producer and its event listener (stores results as chunks complete),
  *   4. a reconciliation pass (jobs finished or lost while the web process was down), repeated
  *      every PARETHERM_RECONCILE_MS (default 15 s) as a safety net for missed events,
- *   5. the in-process worker, unless workers run elsewhere.
+ *   5. the app's own worker, unless workers run elsewhere.
  *
- * In-process worker: on by default when REDIS_URL is unset (the newcomer's single `npm start`),
- * off by default with REDIS_URL (separate `npm run worker` processes do the computing).
- * PARETHERM_IN_PROCESS_WORKER=1 or =0 overrides either default.
+ * Own worker: on by default when REDIS_URL is unset (the newcomer's single `npm start`), off by
+ * default with REDIS_URL (separate `npm run worker` processes do the computing).
+ * PARETHERM_IN_PROCESS_WORKER=1 or =0 overrides either default. It runs as a child process at a
+ * lower OS priority (PARETHERM_WORKER_NICE, default 10), so requests are answered first while it
+ * computes; PARETHERM_WORKER_PROCESS=0 keeps it in this process's threads instead.
  *
  * Everything here uses relative imports and process.env, so scripts and tests run it under tsx.
  */
@@ -17,24 +19,40 @@ import { dataDir, ensureDb } from '../db/index';
 import { resolveRedis, describeTarget, type RedisTarget } from '../queue/connection';
 import type { PrivateRedis } from '../queue/redis-server';
 import { SweepQueue } from '../queue/producer';
-import { startSweepWorker, type SweepWorkerHandle } from '../queue/worker-runtime';
+import { startSweepWorker } from '../queue/worker-runtime';
+import { startWorkerProcess } from '../queue/worker-process';
 import { activeQueue, recordProgress, setActiveQueue } from './registry';
 import { collectJob, handleJobFailed, reconcileSweeps } from './service';
 import { closeSeriesPool } from './results';
+
+/** The app's own worker, in a child process or in this process. */
+export interface LocalWorker {
+	workerId: string;
+	threads: number;
+	/** 'process': a child process; 'threads': this process's threads. */
+	mode: 'process' | 'threads';
+	close(timeout_ms?: number): Promise<void>;
+}
 
 export interface SweepRuntime {
 	target: RedisTarget;
 	queue: SweepQueue;
 	privateRedis: PrivateRedis | null;
-	worker: SweepWorkerHandle | null;
+	worker: LocalWorker | null;
 	stop(): Promise<void>;
 }
 
 export interface SweepRuntimeOptions {
-	/** Start a worker in this process (default: see the module comment). */
+	/** Run the app's own worker (default: see the module comment). */
 	inProcessWorker?: boolean;
-	/** Threads for the in-process worker (default PARETHERM_WORKER_THREADS or the CPU count). */
+	/** Run it as a child process (default true, PARETHERM_WORKER_PROCESS=0 turns it off). */
+	workerProcess?: boolean;
+	/** Its simulation threads (default PARETHERM_WORKER_THREADS or the CPU count). */
 	threads?: number;
+	/** Its nice value when it is a child process (default PARETHERM_WORKER_NICE or 10). */
+	workerNice?: number;
+	/** Drop the child process's per-chunk log (benchmarks). */
+	quietWorker?: boolean;
 	reconcileInterval_ms?: number;
 }
 
@@ -54,6 +72,22 @@ export function inProcessWorkerWanted(env: NodeJS.ProcessEnv = process.env): boo
 	if (flag === '1' || flag === 'true') return true;
 	if (flag === '0' || flag === 'false') return false;
 	return !env.REDIS_URL?.trim();
+}
+
+export function workerProcessWanted(env: NodeJS.ProcessEnv = process.env): boolean {
+	const flag = env.PARETHERM_WORKER_PROCESS?.trim();
+	return !(flag === '0' || flag === 'false');
+}
+
+const workerLog = (m: string) => console.log(`[paretherm worker] ${m}`);
+
+async function startLocalWorker(target: RedisTarget, opts: SweepRuntimeOptions): Promise<LocalWorker> {
+	if (opts.workerProcess ?? workerProcessWanted()) {
+		const h = await startWorkerProcess({ target, threads: opts.threads, nice: opts.workerNice, quiet: opts.quietWorker, log });
+		return { get workerId() { return h.workerId; }, threads: h.threads, mode: 'process', close: (t) => h.close(t) };
+	}
+	const h = await startSweepWorker({ target, threads: opts.threads, log: workerLog });
+	return { workerId: h.workerId, threads: h.threads, mode: 'threads', close: (t) => h.close(t) };
 }
 
 /** Start the sweep runtime once per process (later calls return the same runtime). */
@@ -79,12 +113,12 @@ export async function stopSweepRuntime(): Promise<void> {
 	await rt?.stop();
 }
 
-/** Start a BullMQ worker inside this process on the runtime's Redis (the runtime must be started). */
-export async function startInProcessWorker(threads?: number): Promise<SweepWorkerHandle> {
+/** Start the app's own worker on the runtime's Redis (the runtime must be started). */
+export async function startInProcessWorker(opts: Omit<SweepRuntimeOptions, 'inProcessWorker' | 'reconcileInterval_ms'> = {}): Promise<LocalWorker> {
 	const rt = await sweepRuntime();
-	if (!rt) throw new Error('Start the sweep runtime (startSweepRuntime) before its in-process worker.');
+	if (!rt) throw new Error('Start the sweep runtime (startSweepRuntime) before its own worker.');
 	if (rt.worker) return rt.worker;
-	rt.worker = await startSweepWorker({ target: rt.target, threads, log: (m) => console.log(`[paretherm worker] ${m}`) });
+	rt.worker = await startLocalWorker(rt.target, opts);
 	return rt.worker;
 }
 
@@ -146,11 +180,12 @@ async function start(opts: SweepRuntimeOptions): Promise<SweepRuntime> {
 		}
 	};
 	if (opts.inProcessWorker ?? inProcessWorkerWanted()) {
-		rt.worker = await startSweepWorker({
-			target,
-			threads: opts.threads,
-			log: (m) => console.log(`[paretherm worker] ${m}`)
-		});
+		try {
+			rt.worker = await startLocalWorker(target, opts);
+		} catch (e) {
+			await rt.stop().catch(() => {});
+			throw e;
+		}
 	} else {
 		log('no in-process sweep worker: start `npm run worker` processes against the same Redis');
 	}

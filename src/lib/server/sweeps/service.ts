@@ -12,6 +12,7 @@
  */
 import crypto from 'node:crypto';
 import { gunzipSync } from 'node:zlib';
+import { LRUCache } from 'lru-cache';
 import { Op, UniqueConstraintError, literal, type Transaction } from 'sequelize';
 import { sequelize } from '../db/index';
 import { ACTIVE_SWEEP_STATUSES, Sweep, SweepChunk, SweepPoint, SweepScenario, SweepSeries, type SweepStatus } from '../db/models/index';
@@ -53,7 +54,9 @@ export interface SweepPlan {
 	chunks: TaskChunk[];
 }
 
-const plans = new Map<number, SweepPlan>();
+// LRU rather than a map cleared when full: a list page of 100 sweeps must not re-parse every
+// sweep's definition and inputs on each load.
+const plans = new LRUCache<number, SweepPlan>({ max: 500 });
 
 export function planFor(sweep: Sweep): SweepPlan {
 	let plan = plans.get(sweep.id);
@@ -66,7 +69,6 @@ export function planFor(sweep: Sweep): SweepPlan {
 			scenarios: expandScenarios(definition),
 			chunks: chunkTasks(definition, sweep.chunk_size)
 		};
-		if (plans.size > 50) plans.clear();
 		plans.set(sweep.id, plan);
 	}
 	return plan;

@@ -1,7 +1,7 @@
 import type { PageServerLoad } from './$types';
 import { requireProgramRole } from '$lib/server/auth/guard';
 import { Sweep } from '$lib/server/db/models/index';
-import { sweepCalibration } from '$lib/server/sweeps/results';
+import { cachedSweepCalibration } from '$lib/server/sweeps/results';
 import { apiError } from '$lib/server/page-errors';
 import type { CalibrationJsonDocument } from '$lib/engine/calibration';
 
@@ -15,7 +15,7 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 	let doc: CalibrationJsonDocument | null = null;
 	if (sweep) {
 		const rule = budget_kWh != null ? { kind: 'fastest-within' as const, maxEnergy_Wh: budget_kWh * 1000 } : { kind: 'knee' as const };
-		doc = JSON.parse(await apiError(() => sweepCalibration(sweep, rule, 'json')));
+		doc = JSON.parse(await apiError(() => cachedSweepCalibration(sweep, rule, 'json')));
 	}
 	return {
 		sweeps: finished.map((s) => ({ id: s.id, name: s.name })),

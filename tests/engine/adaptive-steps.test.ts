@@ -38,3 +38,28 @@ describe('adaptive charging steps', () => {
 		}, 120_000);
 	}
 });
+
+describe('prepared scenarios', () => {
+	it('should give the same result as simulate() and refuse a bad strategy with the same field', async () => {
+		const { prepareScenario } = await import('../../src/lib/engine/index');
+		const inp = input({}, { leadTime_s: 600, coolantSetpoint_K: C(25) });
+		const run = prepareScenario(inp);
+		expect(run(inp.strategy, inp.options).summary).toEqual(simulate(inp).summary);
+		expect(run(null, inp.options).summary).toEqual(simulate({ ...inp, strategy: null }).summary);
+		const bad = { leadTime_s: 600, coolantSetpoint_K: C(95) };
+		let direct = '';
+		let prepared = '';
+		try {
+			simulate({ ...inp, strategy: bad });
+		} catch (e) {
+			direct = (e as { field: string }).field;
+		}
+		try {
+			run(bad, inp.options);
+		} catch (e) {
+			prepared = (e as { field: string }).field;
+		}
+		expect(prepared).toBe('strategy.coolantSetpoint_K');
+		expect(prepared).toBe(direct);
+	});
+});

@@ -3,7 +3,7 @@
  * framework). SI units inside with the unit in every name; the sign
  * convention (cell current I_A > 0 while charging) is stated in units.ts.
  */
-export { simulate, LIMIT_NAMES, CONTROL_TOLERANCE } from './simulate';
+export { simulate, prepareScenario, LIMIT_NAMES, CONTROL_TOLERANCE } from './simulate';
 export type { LimitName, Phase, ChargeProtocol, TimeSeries, SimulationSummary, SimulationResult } from './simulate';
 export {
 	cellParamsSchema,

@@ -483,6 +483,29 @@ export const simulationOptionsSchema = z.object({
 	heatOfMixing: z.boolean().optional()
 });
 
+/** Checks of a strategy against its cell and pack (shared by the full input check and prepared scenarios). */
+export function strategyIssues(
+	cell: z.output<typeof cellParamsSchema>,
+	pack: z.output<typeof packDesignSchema>,
+	strategy: z.output<typeof strategySchema>
+): { path: (string | number)[]; message: string }[] {
+	const out: { path: (string | number)[]; message: string }[] = [];
+	const maxT = cell.limits.maxTemp_K;
+	if (strategy.coolantSetpoint_K > maxT) {
+		out.push({
+			path: ['strategy', 'coolantSetpoint_K'],
+			message: `coolant set-point ${fmt.celsius(strategy.coolantSetpoint_K)} is above the cell's maximum temperature ${fmt.celsius(maxT)}; choose a set-point at or below it`
+		});
+	}
+	if (strategy.heaterPowerCap_W !== undefined && strategy.heaterPowerCap_W > pack.heater.maxElectricalPower_W) {
+		out.push({
+			path: ['strategy', 'heaterPowerCap_W'],
+			message: `heater power cap ${fmt.power(strategy.heaterPowerCap_W)} is above the pack heater's ${fmt.power(pack.heater.maxElectricalPower_W)}; lower the cap or choose a pack with a larger heater`
+		});
+	}
+	return out;
+}
+
 export const simulationInputSchema = z
 	.object({
 		cell: cellParamsSchema,
@@ -494,22 +517,7 @@ export const simulationInputSchema = z
 	.superRefine((input, ctx) => {
 		const { cell, pack, scenario, strategy } = input;
 		const maxT = cell.limits.maxTemp_K;
-		if (strategy) {
-			if (strategy.coolantSetpoint_K > maxT) {
-				ctx.addIssue({
-					code: z.ZodIssueCode.custom,
-					path: ['strategy', 'coolantSetpoint_K'],
-					message: `coolant set-point ${fmt.celsius(strategy.coolantSetpoint_K)} is above the cell's maximum temperature ${fmt.celsius(maxT)}; choose a set-point at or below it`
-				});
-			}
-			if (strategy.heaterPowerCap_W !== undefined && strategy.heaterPowerCap_W > pack.heater.maxElectricalPower_W) {
-				ctx.addIssue({
-					code: z.ZodIssueCode.custom,
-					path: ['strategy', 'heaterPowerCap_W'],
-					message: `heater power cap ${fmt.power(strategy.heaterPowerCap_W)} is above the pack heater's ${fmt.power(pack.heater.maxElectricalPower_W)}; lower the cap or choose a pack with a larger heater`
-				});
-			}
-		}
+		if (strategy) for (const issue of strategyIssues(cell, pack, strategy)) ctx.addIssue({ code: z.ZodIssueCode.custom, ...issue });
 		if (scenario.ambient_K >= maxT) {
 			ctx.addIssue({
 				code: z.ZodIssueCode.custom,

@@ -39,7 +39,18 @@ import { CellModel } from './cell-model';
 import { CoolantController, PackThermal, type ThermalActuation, type ControlRequest } from './thermal';
 import { drivePowerFunction, driveEnergy_J } from './drive';
 import { linearInterpolant } from './ocp';
-import { EngineInputError, validateSimulationInput, type SimulationInput } from './schemas';
+import {
+	EngineInputError,
+	issuePath,
+	simulationOptionsSchema,
+	strategyIssues,
+	strategySchema,
+	validateSimulationInput,
+	zodIssues,
+	type SimulationInput,
+	type SimulationOptions,
+	type Strategy
+} from './schemas';
 import { fmt, J_PER_WH, SECONDS_PER_HOUR } from './units';
 
 export type LimitName =
@@ -166,6 +177,32 @@ const STEP_SHRINK_ABOVE = 0.0012;
 export function simulate(input: SimulationInput): SimulationResult {
 	const valid = validateSimulationInput(input);
 	return new Simulation(valid).run();
+}
+
+/**
+ * Validate a scenario's cell, pack and scenario once and return a runner for its strategies: what a
+ * sweep does for every point of a scenario. Each call validates only the strategy and options (and
+ * the strategy against the cell and pack) — same checks, same errors as simulate().
+ */
+export function prepareScenario(base: Pick<SimulationInput, 'cell' | 'pack' | 'scenario'>): (strategy: Strategy | null, options?: SimulationOptions) => SimulationResult {
+	const valid = validateSimulationInput({ ...base, strategy: null });
+	return (strategy, options) => {
+		let s: Strategy | null = null;
+		if (strategy !== null) {
+			const parsed = strategySchema.safeParse(strategy);
+			if (!parsed.success) throw new EngineInputError(zodIssues(parsed.error, 'strategy'));
+			s = parsed.data;
+			const issues = strategyIssues(valid.cell, valid.pack, s);
+			if (issues.length) throw new EngineInputError(issues.map((i) => ({ field: issuePath(i.path), message: i.message })));
+		}
+		let o: SimulationOptions | undefined;
+		if (options !== undefined) {
+			const parsed = simulationOptionsSchema.safeParse(options);
+			if (!parsed.success) throw new EngineInputError(zodIssues(parsed.error, 'options'));
+			o = parsed.data;
+		}
+		return new Simulation({ ...valid, strategy: s, options: o }).run();
+	};
 }
 
 class Simulation {

@@ -4,7 +4,7 @@
  * from, so a failed chunk tells the engineer which scenario and strategy to look at.
  */
 import { gzipSync } from 'node:zlib';
-import { simulate, type SimulationInput, type SimulationResult } from '../../engine/index';
+import { prepareScenario, type SimulationInput, type SimulationResult } from '../../engine/index';
 import type { ChunkJobData, ComputedPoint, ScenarioInputs, SeriesJobData, StrategyInput } from './jobs';
 
 const K0 = 273.15;
@@ -26,12 +26,11 @@ type Runner = (strategy: StrategyInput | null, options: SimulationInput['options
 
 /**
  * The engine call for every simulation of one scenario (its cell, pack and scenario shared by the
- * baseline and all strategies of a chunk). The engine's entry today is `simulate(input)`, which
- * validates the whole input on each call; when it offers a path that validates and tabulates a
- * scenario once, this is the one place to switch to it.
+ * baseline and all strategies of a chunk): the scenario is validated once, each strategy on its own.
  */
 function scenarioRunner(inputs: ScenarioInputs): Runner {
-	return (strategy, options) => simulate({ ...inputs, strategy, options });
+	const run = prepareScenario(inputs as Pick<SimulationInput, 'cell' | 'pack' | 'scenario'>);
+	return (strategy, options) => run(strategy, options);
 }
 
 export class ChunkComputeError extends Error {
@@ -56,11 +55,11 @@ export function computeChunk(data: ChunkJobData, onProgress?: (done: number, tot
 					'; the job was built by a different Paretherm version. Re-queue the sweep.'
 			);
 		}
-		let run = runners.get(task.scenarioIndex);
-		if (!run) runners.set(task.scenarioIndex, (run = scenarioRunner(inputs)));
 		const t0 = performance.now();
 		let summary;
 		try {
+			let run = runners.get(task.scenarioIndex);
+			if (!run) runners.set(task.scenarioIndex, (run = scenarioRunner(inputs)));
 			({ summary } = run(strategy, { keepSeries: false }));
 		} catch (e) {
 			throw new ChunkComputeError(`Simulation failed for ${describePoint(task.scenarioIndex, inputs, strategy)}: ${(e as Error)?.message ?? e}`);
@@ -82,10 +81,11 @@ export function computeFrontSeries(
 	onProgress?: (done: number, total: number) => void
 ): { pointId: number; gzipBase64: string }[] {
 	const out: { pointId: number; gzipBase64: string }[] = [];
-	const run = scenarioRunner(data.inputs);
+	let run: Runner | null = null;
 	for (const task of data.tasks) {
 		let series;
 		try {
+			run ??= scenarioRunner(data.inputs);
 			({ series } = run(task.strategy, { keepSeries: true, seriesInterval_s: data.seriesInterval_s }));
 		} catch (e) {
 			throw new ChunkComputeError(

@@ -10,6 +10,7 @@ import {
 	calibrationTable,
 	csvTextCell,
 	fastestWithin,
+	frontWithBaseline,
 	pickKnee,
 	type EvaluatedPoint,
 	type RatedPoint,
@@ -86,7 +87,8 @@ describe('calibrateScenario', () => {
 			])
 		);
 		expect(c.noStrategyBeatsBaseline).toBe(false);
-		expect(c.front.map((p) => p.energy_Wh)).toEqual([20, 100, 200, 300, 600, 1000]);
+		// (20 Wh, −100 s) is slower than the baseline, which dominates it: not on the front.
+		expect(c.front.map((p) => p.energy_Wh)).toEqual([100, 200, 300, 600, 1000]);
 		expect(c.knee).toEqual({ point: expect.objectContaining({ energy_Wh: 300, timeSaved_s: 1500 }), method: 'kneedle' });
 	});
 
@@ -136,6 +138,92 @@ describe('calibrateScenario', () => {
 			}),
 			{ numRuns: 300 }
 		);
+	});
+});
+
+describe('the baseline on the front', () => {
+	// Definition of Pareto dominance (common practice, no source) applied to the candidate set
+	// {baseline (0 Wh, 0 s)} ∪ strategies: keeping the pack's default policy is always possible.
+	it('should keep strategies the baseline dominates off the front (slower for more energy)', () => {
+		// Shape seen in a cold-morning sweep: short lead times spend 0.18 and 0.24 kWh and
+		// charge 10.9 and 18.8 min slower than the baseline; longer ones save time.
+		const c = calibrateScenario(
+			evaluation(3600, [
+				pt(180, 3600 + 10.9 * 60),
+				pt(240, 3600 + 18.8 * 60),
+				pt(900, 3600 - 300),
+				pt(1500, 3600 - 600),
+				pt(2400, 3600 - 700)
+			])
+		);
+		expect(c.front.map((p) => p.energy_Wh)).toEqual([900, 1500, 2400]);
+		expect(c.front.every((p) => p.timeSaved_s >= 0)).toBe(true);
+		expect(c.baselineOnFront).toBe(true);
+		expect(c.points.filter((p) => p.timeSaved_s < 0).every((p) => !c.front.includes(p))).toBe(true);
+	});
+
+	it('should never put a slower-than-baseline strategy on the front, even when it spends less energy', () => {
+		// Rule stated in calibration.ts: negative time saved is never on a front.
+		const c = calibrateScenario(evaluation(3600, [pt(-50, 3660), pt(300, 3400)]));
+		expect(c.front.map((p) => p.energy_Wh)).toEqual([300]);
+		expect(c.baselineOnFront).toBe(true);
+		expect(fastestWithin(c.front, 0)).toBeNull();
+	});
+
+	it('should say when a strategy dominates the baseline', () => {
+		// (−20 Wh, +60 s) saves time and energy: the baseline is dominated (definition, no source).
+		const c = calibrateScenario(evaluation(3600, [pt(-20, 3540), pt(400, 3300)]));
+		expect(c.baselineOnFront).toBe(false);
+		expect(c.front.map((p) => p.energy_Wh)).toEqual([-20, 400]);
+	});
+
+	it('should match a brute-force front of baseline and strategies on random sets', () => {
+		// Brute-force reference straight from the dominance definition (common practice, no source).
+		const pairArb = fc.tuple(fc.integer({ min: -5, max: 5 }), fc.integer({ min: -5, max: 5 }));
+		fc.assert(
+			fc.property(fc.array(pairArb, { maxLength: 30 }), (pairs) => {
+				const pts = pairs.map(([e, t]) => ({ energy_Wh: e, timeSaved_s: t }));
+				const all = [{ energy_Wh: 0, timeSaved_s: 0 }, ...pts];
+				const dominated = (p: { energy_Wh: number; timeSaved_s: number }) =>
+					all.some((q) => q.energy_Wh <= p.energy_Wh && q.timeSaved_s >= p.timeSaved_s && (q.energy_Wh < p.energy_Wh || q.timeSaved_s > p.timeSaved_s));
+				const expected = pts.filter((p) => p.timeSaved_s >= 0 && !dominated(p));
+				const got = frontWithBaseline(pts);
+				expect(new Set(got.front)).toEqual(new Set(expected));
+				expect(got.baselineOnFront).toBe(!dominated(all[0]));
+			}),
+			{ numRuns: 300 }
+		);
+	});
+
+	it('should keep the knee and the rule pick on the front', () => {
+		// Consistency of the picks with the front (brief); common practice, no source.
+		fc.assert(
+			fc.property(
+				fc.array(fc.tuple(fc.integer({ min: -200, max: 3000 }), fc.integer({ min: 2000, max: 5000 })), { maxLength: 30 }),
+				fc.integer({ min: 0, max: 3000 }),
+				(pairs, budget) => {
+					const c = calibrateScenario(evaluation(3600, pairs.map(([e, t]) => pt(e, t))));
+					if (c.knee) expect(c.front).toContain(c.knee.point);
+					const rule = fastestWithin(c.front, budget);
+					if (rule) expect(rule.timeSaved_s).toBeGreaterThan(0);
+					expect(rule?.timeSaved_s ?? null).toBe(fastestWithin(c.points, budget)?.timeSaved_s ?? null);
+				}
+			),
+			{ numRuns: 200 }
+		);
+	});
+
+	it('should measure the knee from where the front starts when a zero-saving strategy dominates the baseline', () => {
+		// Satopää et al. 2011, steps 2–6, hand computed. The front starts at (−1000 Wh, 0 s):
+		// x_s = (E + 1000)/2000 = 0, 0.55, 0.65, 0.85, 1 and y_s = t/1410 = 0, 0.284, 0.638, 0.922, 1
+		// ⇒ d = 0, −0.266, −0.012, 0.072, 0; the only local maximum (0.072 at 700 Wh) has
+		// T = 0.072 − 1/4 < 0, so no knee and the time-saved-per-kWh fallback picks 100 Wh
+		// (4 s/Wh). Measured from (0 Wh, 0 s) instead, d = 0, 0.184, 0.338, 0.222, 0 and the
+		// knee would be 300 Wh: the two starts are told apart.
+		const c = calibrateScenario(evaluation(3600, [pt(-1000, 3600), pt(100, 3200), pt(300, 2700), pt(700, 2300), pt(1000, 2190)]));
+		expect(c.baselineOnFront).toBe(false);
+		expect(c.front[0].energy_Wh).toBe(-1000);
+		expect(c.knee).toEqual({ point: expect.objectContaining({ energy_Wh: 100 }), method: 'max-time-saved-per-kWh' });
 	});
 });
 

@@ -11,16 +11,25 @@
  *   strategy; energyPreArrival_Wh + energyDuringCharge_Wh are its two parts.
  * - The baseline is the reference, so it stands for (0 Wh, 0 s).
  *
+ * Front: the baseline belongs to the candidate set. "Doing nothing different"
+ * is always available, so a strategy it dominates (as much or more energy for
+ * as little or less time saved) is never on the front, and a strategy that is
+ * slower than the baseline (timeSaved_s < 0) is never on it either, even when
+ * it spends less energy than the baseline (keeping the default policy is the
+ * better answer to "charge sooner"). `front` lists the strategies only;
+ * `baselineOnFront` says whether the baseline itself is non-dominated, i.e.
+ * whether the front line starts at the origin.
+ *
  * Recommendation ("knee" rule):
  * - Candidates are front points that strictly beat the baseline
  *   (timeSaved_s > 0). If there are none, `noStrategyBeatsBaseline` is true
  *   and nothing is recommended: keep the pack's default policy.
  * - With three or more candidates, Kneedle (Satopää et al., ICDCS Workshops
- *   2011; see kneedle.ts) runs on time saved against energy along the
- *   candidates. When every candidate costs energy (> 0 Wh) the baseline point
- *   (0 Wh, 0 s) is put in front of them as the curve's origin, so the knee is
- *   measured from "do nothing different"; a candidate with energy ≤ 0 already
- *   dominates that origin, so then no origin is added.
+ *   2011; see kneedle.ts) runs on time saved against energy along the front,
+ *   starting where the front starts: at the baseline (0 Wh, 0 s) when it is
+ *   on the front, otherwise at the cheapest front point that saves no time
+ *   (energy < 0, time saved 0) if there is one. A candidate with energy ≤ 0
+ *   dominates the origin, so then no origin is added.
  * - Fallback (one or two candidates, or Kneedle finds no knee): the candidate
  *   with the most time saved per kWh. Candidates with energy ≤ 0 save time
  *   for free and rank above all others; among those, the most time saved
@@ -77,8 +86,13 @@ export interface ScenarioCalibration {
 	baselineTimeToTarget_s: number;
 	/** Every input point, in input order, with timeSaved_s. */
 	points: RatedPoint[];
-	/** Non-dominated feasible points, energy ascending (includes points that do not beat baseline). */
+	/**
+	 * Strategies on the front of {baseline, feasible strategies}, energy ascending: none is
+	 * dominated by the baseline or another strategy, and none is slower than the baseline.
+	 */
 	front: RatedPoint[];
+	/** True when no strategy dominates the baseline, so the front starts at (0 Wh, 0 s). */
+	baselineOnFront: boolean;
 	/** Recommended point by the knee rule, or null when no strategy beats the baseline. */
 	knee: Pick | null;
 	noStrategyBeatsBaseline: boolean;
@@ -118,32 +132,57 @@ export function calibrateScenario(
 		...p,
 		timeSaved_s: baseline_s - p.timeToTarget_s
 	}));
-	const front = paretoFront(points.filter(isUsable), energyOf, gainOf);
+	const { front, baselineOnFront } = frontWithBaseline(points.filter(isUsable));
 	const candidates = front.filter((p) => p.timeSaved_s > 0);
+	// Where the front starts: the baseline, or a strategy saving no time for less energy.
+	const start = baselineOnFront ? BASELINE_ORIGIN : front.find((p) => p.timeSaved_s <= 0);
 	return {
 		scenario: evaluation.scenario,
 		baselineTimeToTarget_s: baseline_s,
 		points,
 		front,
-		knee: pickKnee(candidates, options.sensitivity),
+		baselineOnFront,
+		knee: pickKnee(candidates, options.sensitivity, start ?? null),
 		noStrategyBeatsBaseline: candidates.length === 0
 	};
+}
+
+const BASELINE_ORIGIN = { energy_Wh: 0, timeSaved_s: 0 };
+
+/**
+ * Front of the baseline (0 Wh, 0 s) together with `usable` strategies (feasible, finite), with
+ * strategies slower than the baseline left out. Returns the strategies on it (energy ascending,
+ * as paretoFront orders them) and whether the baseline itself is on it. Exported for the
+ * comparison of fronts and for tests.
+ */
+export function frontWithBaseline<T extends { energy_Wh: number; timeSaved_s: number }>(
+	usable: readonly T[]
+): { front: T[]; baselineOnFront: boolean } {
+	const origin = BASELINE_ORIGIN as T;
+	const candidates = [origin, ...usable.filter((p) => p.timeSaved_s >= 0)];
+	const all = paretoFront(candidates, (p) => p.energy_Wh, (p) => p.timeSaved_s);
+	return { front: all.filter((p) => p !== origin), baselineOnFront: all.includes(origin) };
 }
 
 /**
  * Knee rule on front points that beat the baseline (energy ascending, as
  * returned by paretoFront). Exported for testing and for re-picking with a
- * different sensitivity.
+ * different sensitivity. `origin` is where the front starts (default: the baseline at
+ * (0 Wh, 0 s)); it is put in front of the candidates when all of them cost more energy.
  */
-export function pickKnee(candidates: readonly RatedPoint[], sensitivity = 1): Pick | null {
+export function pickKnee(
+	candidates: readonly RatedPoint[],
+	sensitivity = 1,
+	origin: { energy_Wh: number; timeSaved_s: number } | null = BASELINE_ORIGIN
+): Pick | null {
 	if (candidates.length === 0) return null;
 	if (candidates.length >= 3) {
-		const withOrigin = candidates.every((p) => p.energy_Wh > 0);
+		const withOrigin = origin !== null && candidates.every((p) => p.energy_Wh > origin.energy_Wh);
 		const x = candidates.map(energyOf);
 		const y = candidates.map(gainOf);
 		if (withOrigin) {
-			x.unshift(0);
-			y.unshift(0);
+			x.unshift(origin.energy_Wh);
+			y.unshift(origin.timeSaved_s);
 		}
 		const { kneeIndex } = kneedle(x, y, { sensitivity });
 		if (kneeIndex !== null) {

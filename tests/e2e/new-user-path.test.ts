@@ -6,7 +6,8 @@
  * finding; screenshots (1280 px and 390 px) go to docs/screenshots.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Page } from 'playwright-core';
+import type { Download, Page } from 'playwright-core';
+import fs from 'node:fs';
 import { execFile } from 'node:child_process';
 import path from 'node:path';
 import { promisify } from 'node:util';
@@ -14,6 +15,7 @@ import { DEMO, ROOT, startApp, tempDataDir, type RunningApp } from '../helpers/a
 import { BrowserSession } from '../helpers/browser';
 import { queryDb } from '../helpers/db-checksum';
 import { DEMO_SWEEP_NAME } from '../../src/lib/server/sweeps/demo';
+import { demoNmcPouch } from '../../src/lib/engine/demo';
 
 let app: RunningApp;
 let session: BrowserSession;
@@ -42,6 +44,12 @@ afterAll(async () => {
 
 const go = (p: string) => page.goto(`${app.url}${programPath}${p}`);
 const shot = (name: string) => session.shot(name);
+
+/** The text of a file the page downloaded. */
+async function readDownload(d: Download): Promise<string> {
+	const file = await d.path();
+	return fs.readFileSync(file!, 'utf8');
+}
 
 /** Every row of the sweep's points table (clicks "Show … more" until all are shown). */
 async function showAllRows() {
@@ -76,6 +84,56 @@ describe('a new user on the demo program', () => {
 		await page.waitForURL(/\/points\/\d+$/);
 		const [pre, during, net] = splitParts((await page.getByTestId('energy-split').textContent()) ?? '');
 		expect(pre + during).toBeCloseTo(net, 6);
+		await session.signOut();
+	});
+
+	it('should show the newest version everywhere, let the builder pick a version and show which versions a sweep ran', async () => {
+		await session.signInAs(DEMO.engineer);
+		// Copy the demo NMC cell and edit it twice, renaming it on the way (v1 → v3).
+		await go('/inputs');
+		await page.getByRole('link', { name: demoNmcPouch.name, exact: true }).click();
+		await page.getByRole('button', { name: 'Duplicate as a new input' }).click();
+		await page.waitForURL(/\/inputs\/\d+$/);
+		const baseName = ((await page.locator('input[name="name"]').inputValue()) ?? '').trim();
+		for (const [margin_V, suffix] of [
+			[0.015, 'with 15 mV plating margin'],
+			[0.02, 'with 20 mV plating margin']
+		] as const) {
+			const json = JSON.parse(await page.locator('textarea[name="json"]').inputValue());
+			json.limits.anodePotentialMargin_V = margin_V;
+			await page.locator('input[name="name"]').fill(`${baseName} ${suffix}`);
+			await page.locator('textarea[name="json"]').fill(JSON.stringify(json, null, 2));
+			await page.getByRole('button', { name: 'Save as new version' }).click();
+			await page.waitForURL(/\/inputs\/\d+$/);
+		}
+		const newestUrl = new URL(page.url()).pathname;
+		const newestName = `${baseName} with 20 mV plating margin`;
+
+		await go('/inputs');
+		const item = page.getByTestId('input-item').filter({ hasText: '20 mV plating margin' });
+		await expect(item.getByTestId('input-version').textContent()).resolves.toBe('v3 (newest of 3)');
+		await expect(item.getByRole('link').getAttribute('href')).resolves.toBe(newestUrl);
+		await expect(page.getByTestId('input-item').filter({ hasText: `${baseName}` }).count()).resolves.toBe(1);
+
+		// The builder lists the newest name, offers every version (newest by default) and runs the one picked.
+		await go('/sweeps/new');
+		await expect(page.getByText(newestName, { exact: true }).count()).resolves.toBe(1);
+		const slug = (await page.locator(`input[name="cells"]`).evaluateAll((els, n) => els.find((e) => e.parentElement?.textContent?.includes(n))?.getAttribute('value'), newestName))!;
+		const versionSelect = page.locator(`select[name="cellVersion:${slug}"]`);
+		await expect(versionSelect.inputValue()).resolves.toBe('3');
+		for (const c of await page.locator('input[name="cells"]').all()) if ((await c.getAttribute('value')) !== slug) await c.uncheck();
+		await page.locator(`input[name="cells"][value="${slug}"]`).check();
+		await versionSelect.selectOption('2');
+		await page.getByLabel('Ambient temperatures').fill('-10');
+		await page.getByLabel('States of health').fill('100');
+		await page.getByLabel('Arrival states of charge').fill('20');
+		await page.getByLabel('Heater lead times before arrival').fill('0, 10');
+		await page.getByLabel('Coolant set-points').fill('25');
+		await page.getByRole('button', { name: 'Queue sweep' }).click();
+		await page.waitForURL(/\/sweeps\/\d+$/);
+		const ran = page.getByTestId('ran-version').filter({ hasText: 'plating margin' });
+		await expect(ran.textContent()).resolves.toContain(`${baseName} with 15 mV plating margin · version 2`);
+		await expect(ran.textContent()).resolves.toContain('since edited: version 3');
 		await session.signOut();
 	});
 });

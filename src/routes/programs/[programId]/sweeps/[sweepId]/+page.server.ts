@@ -4,11 +4,28 @@ import { requireProgramRole } from '$lib/server/auth/guard';
 import { getProgramSweep, sweepStatus } from '$lib/server/sweeps/results';
 import { cancelSweep, SweepInputError } from '$lib/server/sweeps/service';
 import { apiError } from '$lib/server/page-errors';
+import { ParameterSet } from '$lib/server/db/models/index';
+
+/** For each input the sweep ran (by parameter-set id): the newest version of the same input now. */
+async function newestVersions(programId: number, status: ReturnType<typeof sweepStatus>) {
+	const refs = [
+		{ kind: 'scenario', ...status.inputs.baseScenario },
+		...status.inputs.cells.map((c) => ({ kind: 'cell', ...c })),
+		...status.inputs.packs.map((p) => ({ kind: 'pack', ...p }))
+	];
+	const out: Record<number, { id: number; version: number; name: string }> = {};
+	for (const r of refs) {
+		const row = await ParameterSet.findOne({ where: { program_id: programId, kind: r.kind, slug: r.slug }, order: [['version', 'DESC']], attributes: ['id', 'version', 'name'] });
+		if (row) out[r.parameterSetId] = { id: row.id, version: row.version, name: row.name };
+	}
+	return out;
+}
 
 export const load: PageServerLoad = async ({ locals, params }) => {
 	const { program } = await requireProgramRole(locals, params.programId, 'read');
 	const sweep = await apiError(() => getProgramSweep(program.id, params.sweepId));
-	return { sweep: sweepStatus(sweep) };
+	const status = sweepStatus(sweep);
+	return { sweep: status, newest: await newestVersions(program.id, status) };
 };
 
 export const actions: Actions = {

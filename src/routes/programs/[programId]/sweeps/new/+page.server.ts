@@ -4,7 +4,7 @@ import { requireProgramRole } from '$lib/server/auth/guard';
 import { latestInputs } from '$lib/server/inputs';
 import { createSweep, SweepInputError } from '$lib/server/sweeps/service';
 import { Sweep } from '$lib/server/db/models/index';
-import { BUILDER_FIELDS, builderToRequest, fieldForPath, type BuilderValues } from './builder';
+import { BUILDER_FIELDS, builderToRequest, fieldForPath, versionsFromForm, type BuilderValues } from './builder';
 
 /** Simulations per second from the most recent finished sweeps; a stated default before any ran. */
 async function measuredThroughput(programId: number): Promise<{ simsPerSecond: number; measured: boolean }> {
@@ -23,7 +23,11 @@ async function measuredThroughput(programId: number): Promise<{ simsPerSecond: n
 export const load: PageServerLoad = async ({ locals, params }) => {
 	const { program } = await requireProgramRole(locals, params.programId, 'edit');
 	const rows = await latestInputs(program.id);
-	const pick = (kind: string) => rows.filter((r) => r.row.kind === kind).map(({ row }) => ({ slug: row.slug, name: row.name, version: row.version }));
+	// Newest version first; the form offers every version and picks the newest by default.
+	const pick = (kind: string) =>
+		rows
+			.filter((r) => r.row.kind === kind)
+			.map(({ row, all }) => ({ slug: row.slug, name: row.name, version: row.version, versions: all.map((v) => ({ version: v.version, name: v.name })) }));
 	return { cells: pick('cell'), packs: pick('pack'), scenarios: pick('scenario'), throughput: await measuredThroughput(program.id), fields: BUILDER_FIELDS };
 };
 
@@ -34,8 +38,11 @@ export const actions: Actions = {
 		const values: BuilderValues = {
 			name: String(form.get('name') ?? ''),
 			scenarioId: String(form.get('scenarioId') ?? ''),
+			scenarioVersion: String(form.get('scenarioVersion') ?? ''),
 			cells: form.getAll('cells').map(String),
 			packs: form.getAll('packs').map(String),
+			cellVersions: versionsFromForm(form, 'cellVersion:'),
+			packVersions: versionsFromForm(form, 'packVersion:'),
 			ambients: String(form.get('ambients') ?? ''),
 			soh: String(form.get('soh') ?? ''),
 			socs: String(form.get('socs') ?? ''),

@@ -7,8 +7,13 @@ import { SweepInputError } from '$lib/server/sweeps/request';
 export interface BuilderValues {
 	name: string;
 	scenarioId: string;
+	/** Version of the base scenario (blank = newest). */
+	scenarioVersion?: string;
 	cells: string[];
 	packs: string[];
+	/** Chosen version per ticked cell / pack slug (missing or blank = newest). */
+	cellVersions?: Record<string, string>;
+	packVersions?: Record<string, string>;
 	ambients: string;
 	soh: string;
 	socs: string;
@@ -46,6 +51,21 @@ export function parseList(raw: string, field: ListField, optional = false): numb
 	});
 }
 
+/** "slug" + "3" → "slug@3" (the sweep then uses exactly version 3); blank version → newest. */
+function withVersion(slug: string, version: string | undefined, field: string): string {
+	const v = (version ?? '').trim();
+	if (!v) return slug;
+	if (!/^[1-9][0-9]{0,5}$/.test(v)) throw new SweepInputError(`Version “${v.slice(0, 20)}” of “${slug.slice(0, 60)}” is not a version number; pick one from the list.`, field);
+	return `${slug}@${v}`;
+}
+
+/** The versions chosen in the form: fields named `<prefix><slug>` (e.g. "cellVersion:demo-nmc-pouch"). */
+export function versionsFromForm(form: FormData, prefix: string): Record<string, string> {
+	const out: Record<string, string> = {};
+	for (const [k, v] of form.entries()) if (k.startsWith(prefix) && typeof v === 'string') out[k.slice(prefix.length)] = v;
+	return out;
+}
+
 export function builderToRequest(v: BuilderValues) {
 	const K = 273.15;
 	if (!v.scenarioId) throw new SweepInputError('Choose the base scenario (drive, dwell, charger and target).', 'scenarioId');
@@ -58,10 +78,10 @@ export function builderToRequest(v: BuilderValues) {
 	const caps = parseList(v.heaterCaps, 'heaterCaps', true);
 	return {
 		...(v.name.trim() ? { name: v.name.trim() } : {}),
-		scenarioId: v.scenarioId,
+		scenarioId: withVersion(v.scenarioId, v.scenarioVersion, 'scenarioId'),
 		definition: {
-			cellIds: v.cells,
-			packIds: v.packs,
+			cellIds: v.cells.map((slug) => withVersion(slug, v.cellVersions?.[slug], 'cells')),
+			packIds: v.packs.map((slug) => withVersion(slug, v.packVersions?.[slug], 'packs')),
 			ambients_K: parseList(v.ambients, 'ambients')!.map((c) => c + K),
 			statesOfHealth: parseList(v.soh, 'soh')!.map((p) => p / 100),
 			arrivalSocs: parseList(v.socs, 'socs')!.map((p) => p / 100),

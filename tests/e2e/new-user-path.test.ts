@@ -136,4 +136,34 @@ describe('a new user on the demo program', () => {
 		await expect(ran.textContent()).resolves.toContain('since edited: version 3');
 		await session.signOut();
 	});
+
+	it('should export calibration tables that say where they came from, and agree with the page on the rule', async () => {
+		await session.signInAs(DEMO.manager);
+		await go(`/calibration?sweep=${demoSweepId}`);
+		await page.getByTestId('calibration-table').waitFor();
+		const pageRule = (await page.getByTestId('calibration-rule').textContent())!.trim();
+		const pageCodes = await page.getByTestId('row-rule').evaluateAll((els) => els.map((e) => e.getAttribute('data-rule')));
+
+		const [jsonDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export JSON' }).click()]);
+		const doc = JSON.parse(await readDownload(jsonDownload));
+		expect(doc.provenance.sweep).toMatchObject({ id: demoSweepId, name: DEMO_SWEEP_NAME });
+		expect(doc.provenance.inputs.cells.map((c: { name: string; version: number }) => c.version)).toEqual(doc.provenance.inputs.cells.map(() => 1));
+		expect(doc.provenance.inputs.cells.map((c: { name: string }) => c.name)).toContain(demoNmcPouch.name);
+		expect(doc.provenance.inputs.baseScenario).toMatchObject({ slug: 'cold-morning-depot', version: 1 });
+		expect(new Date(doc.provenance.createdAt).toISOString()).toBe(doc.provenance.createdAt);
+		expect(doc.provenance.generator).toMatch(/^Paretherm \d+\.\d+\.\d+/);
+		expect(doc.rule.kind).toBe('knee');
+		expect(doc.rule.description).toBe(pageRule);
+		expect(doc.rows.map((r: { rule: string }) => r.rule)).toEqual(pageCodes);
+		expect(doc.rows.every((r: { cell_name: string; cell_version: number }) => r.cell_name && r.cell_version === 1)).toBe(true);
+
+		const [csvDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export CSV' }).click()]);
+		const lines = (await readDownload(csvDownload)).split('\r\n');
+		expect(lines[0]).toBe('# format: paretherm-calibration/2');
+		expect(lines).toContain(`# sweep: ${demoSweepId} "${DEMO_SWEEP_NAME}" finished ${doc.provenance.sweep.finishedAt}`);
+		expect(lines.find((l) => l.startsWith('# rule: '))).toBe(`# rule: ${pageRule}`);
+		expect(lines.some((l) => /^# input: cell ".+" slug .+ version 1 \(parameter set \d+\)$/.test(l))).toBe(true);
+		expect(lines.some((l) => /^# generator: Paretherm \d/.test(l))).toBe(true);
+		await session.signOut();
+	});
 });

@@ -12,6 +12,7 @@ import {
 	fastestWithin,
 	frontWithBaseline,
 	pickKnee,
+	type CalibrationProvenance,
 	type EvaluatedPoint,
 	type RatedPoint,
 	type ScenarioCalibration,
@@ -353,7 +354,7 @@ describe('calibration table and exports', () => {
 		const t = calibrationTable(calibrations, { kind: 'fastest-within', maxEnergy_Wh: 650 });
 		expect(t[0]).toMatchObject({ energy_Wh: 600, timeSaved_s: 1600, rule: 'fastest-within' });
 		expect(t[2]).toMatchObject({ leadTime_s: null, rule: 'baseline' }); // 1500 Wh is over budget
-		expect(calibrationCsv(t).split('\r\n')[1].endsWith(',fastest-within-0.65-kWh')).toBe(true);
+		expect(calibrationCsv(t).split('\r\n')[1].endsWith(',fastest-within-0.65-kWh,,,,')).toBe(true);
 	});
 
 	it('should write the header with units and convert K→°C, s→min, Wh→kWh', () => {
@@ -362,11 +363,13 @@ describe('calibration table and exports', () => {
 		const lines = csv.split('\r\n');
 		expect(lines[0]).toBe(
 			'ambient_C,state_of_health,arrival_soc,cell,pack,lead_time_min,setpoint_C,heater_power_cap_kW,' +
-				'time_saved_min,energy_kWh,energy_pre_arrival_kWh,energy_during_charge_kWh,baseline_time_min,rule'
+				'time_saved_min,energy_kWh,energy_pre_arrival_kWh,energy_during_charge_kWh,baseline_time_min,rule,' +
+				'cell_name,cell_version,pack_name,pack_version'
 		);
 		// 263.15 K = −10 °C, 1800 s = 30 min, 298.15 K = 25 °C, 6000 W = 6 kW,
 		// 1500 s = 25 min, 300 Wh = 0.3 kWh (0.18 + 0.12), 5000 s = 83.333333 min.
-		expect(lines[1]).toBe('-10,0.9,0.2,cell-a,pack-1,30,25,6,25,0.3,0.18,0.12,83.333333,kneedle');
+		// Without provenance the name and version columns are empty.
+		expect(lines[1]).toBe('-10,0.9,0.2,cell-a,pack-1,30,25,6,25,0.3,0.18,0.12,83.333333,kneedle,,,,');
 		expect(csv.endsWith('\r\n')).toBe(true);
 	});
 
@@ -431,11 +434,62 @@ describe('calibration table and exports', () => {
 		// Export format requirement (brief); common practice, no source.
 		const doc = JSON.parse(calibrationJson(table));
 		expect(doc.format).toBe(CALIBRATION_FORMAT);
-		expect(doc.format).toBe('paretherm-calibration/1');
+		expect(doc.format).toBe('paretherm-calibration/2');
 		expect(Object.keys(doc.units).sort()).toEqual([...CALIBRATION_CSV_HEADER].sort());
 		expect(Object.keys(doc.rows[0]).sort()).toEqual([...CALIBRATION_CSV_HEADER].sort());
 		expect(doc.rows[0]).toMatchObject({ ambient_C: -10, lead_time_min: 30, setpoint_C: 25, energy_kWh: 0.3, time_saved_min: 25 });
 		expect(doc.rows[1]).toMatchObject({ lead_time_min: null, setpoint_C: null, rule: 'baseline', cell: '=HYPERLINK("http://x","y")' });
+	});
+});
+
+describe('calibration provenance', () => {
+	// Export requirement (common practice for traceable data, no source): a table says which sweep,
+	// which exact input versions, which rule, when and by what it was made.
+	const table = calibrationTable([
+		calibrateScenario(evaluation(3600, [pt(1000, 3000), pt(100, 3300)], { ...scenario, cellId: 'cell-a@3', packId: 'pack-1' }))
+	]);
+	const provenance: CalibrationProvenance = {
+		sweep: { id: 42, name: 'Winter depot, study\nB', finishedAt: '2026-01-05T06:30:00.000Z' },
+		inputs: {
+			baseScenario: { id: 'depot', parameterSetId: 7, slug: 'depot', name: 'Depot, cold', version: 2 },
+			cells: [{ id: 'cell-a@3', parameterSetId: 11, slug: 'cell-a', name: 'Cell A 20 mV margin', version: 3 }],
+			packs: [{ id: 'pack-1', parameterSetId: 12, slug: 'pack-1', name: 'Pack one', version: 1 }]
+		},
+		createdAt: '2026-01-06T08:00:00.000Z',
+		generator: 'Paretherm 9.9.9'
+	};
+
+	it('should put the sweep, every input version, the rule, the time and the generator in the JSON', () => {
+		const doc = JSON.parse(calibrationJson(table, provenance, { kind: 'knee' }));
+		expect(doc.provenance).toEqual(provenance);
+		expect(doc.rule).toMatchObject({ kind: 'knee' });
+		expect(doc.rule.description).toMatch(/knee/);
+		expect(doc.rows[0]).toMatchObject({ cell: 'cell-a@3', cell_name: 'Cell A 20 mV margin', cell_version: 3, pack_name: 'Pack one', pack_version: 1, rule: 'max-time-saved-per-kWh' });
+		const budget = JSON.parse(calibrationJson(table, provenance, { kind: 'fastest-within', maxEnergy_Wh: 650 }));
+		expect(budget.rule).toMatchObject({ kind: 'fastest-within', maxEnergy_Wh: 650 });
+		expect(budget.rule.description).toMatch(/0\.65 kWh/);
+	});
+
+	it('should write the same facts as # lines above the CSV header that a comment-aware reader skips', () => {
+		const csv = calibrationCsv(table, provenance, { kind: 'knee' });
+		const lines = csv.split('\r\n');
+		const head = lines.filter((l) => l.startsWith('#'));
+		expect(head).toEqual([
+			'# format: paretherm-calibration/2',
+			'# sweep: 42 "Winter depot, study B" finished 2026-01-05T06:30:00.000Z',
+			'# input: scenario "Depot, cold" slug depot version 2 (parameter set 7)',
+			'# input: cell "Cell A 20 mV margin" slug cell-a version 3 (parameter set 11)',
+			'# input: pack "Pack one" slug pack-1 version 1 (parameter set 12)',
+			expect.stringMatching(/^# rule: knee of each front/),
+			'# created: 2026-01-06T08:00:00.000Z',
+			'# generator: Paretherm 9.9.9'
+		]);
+		expect(lines[head.length]).toBe(CALIBRATION_CSV_HEADER.join(','));
+		// papaparse's comment option as the independent reader.
+		const parsed = Papa.parse<string[]>(csv, { delimiter: ',', newline: '\r\n', comments: '#', skipEmptyLines: true });
+		expect(parsed.errors).toEqual([]);
+		expect(parsed.data[0]).toEqual([...CALIBRATION_CSV_HEADER]);
+		expect(parsed.data[1][CALIBRATION_CSV_HEADER.indexOf('cell_version')]).toBe('3');
 	});
 });
 

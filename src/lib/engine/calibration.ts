@@ -333,7 +333,11 @@ export const CALIBRATION_CSV_HEADER = [
 	'energy_pre_arrival_kWh',
 	'energy_during_charge_kWh',
 	'baseline_time_min',
-	'rule'
+	'rule',
+	'cell_name',
+	'cell_version',
+	'pack_name',
+	'pack_version'
 ] as const;
 
 export interface CalibrationExportRow {
@@ -351,6 +355,11 @@ export interface CalibrationExportRow {
 	energy_during_charge_kWh: number | null;
 	baseline_time_min: number | null;
 	rule: string;
+	/** Name and version of the input that ran (empty without provenance). */
+	cell_name: string;
+	cell_version: number | null;
+	pack_name: string;
+	pack_version: number | null;
 }
 
 function ruleLabel(row: CalibrationRow): string {
@@ -361,7 +370,9 @@ function ruleLabel(row: CalibrationRow): string {
 }
 
 /** A table row in export units (°C, min, kWh, kW; fractions for SOH and SOC). */
-export function toExportRow(row: CalibrationRow): CalibrationExportRow {
+export function toExportRow(row: CalibrationRow, provenance?: CalibrationProvenance): CalibrationExportRow {
+	const cell = provenance?.inputs.cells.find((c) => c.id === row.cellId);
+	const pack = provenance?.inputs.packs.find((p) => p.id === row.packId);
 	return {
 		ambient_C: out(row.ambient_K, toC),
 		state_of_health: out(row.stateOfHealth),
@@ -376,8 +387,75 @@ export function toExportRow(row: CalibrationRow): CalibrationExportRow {
 		energy_pre_arrival_kWh: out(row.energyPreArrival_Wh, toK),
 		energy_during_charge_kWh: out(row.energyDuringCharge_Wh, toK),
 		baseline_time_min: out(row.baselineTimeToTarget_s, toMin),
-		rule: ruleLabel(row)
+		rule: ruleLabel(row),
+		cell_name: cell?.name ?? '',
+		cell_version: cell?.version ?? null,
+		pack_name: pack?.name ?? '',
+		pack_version: pack?.version ?? null
 	};
+}
+
+// ---------------------------------------------------------------------------
+// Provenance: where a calibration table came from.
+
+/** One input a sweep ran: the id as written in its definition, and the exact version. */
+export interface ProvenanceInput {
+	/** Id as written in the sweep definition (slug, or slug@version). */
+	id: string;
+	/** Id of the stored parameter set (that exact version). */
+	parameterSetId: number;
+	slug: string;
+	name: string;
+	version: number;
+}
+
+export interface CalibrationProvenance {
+	sweep: { id: number; name: string; finishedAt: string | null };
+	inputs: { baseScenario: ProvenanceInput; cells: ProvenanceInput[]; packs: ProvenanceInput[] };
+	/** ISO 8601 time the export was made. */
+	createdAt: string;
+	/** Product and version that wrote the file, e.g. "Paretherm 0.1.0". */
+	generator: string;
+}
+
+/** The selection rule in words, the same on the page and in both exports. */
+export function ruleDescription(rule: CalibrationRule): string {
+	if (rule.kind === 'fastest-within') {
+		return (
+			`fastest within ${out(rule.maxEnergy_Wh, toK)} kWh: per scenario the strategy with the most time saved ` +
+			`whose net energy is at most the budget; rows marked 'baseline' have none within the budget that beats the baseline`
+		);
+	}
+	return (
+		"knee of each front: rows marked 'kneedle' are the Kneedle knee (Satopaa et al., ICDCS Workshops 2011); " +
+		"'max-time-saved-per-kWh' rows had a front too short (fewer than 3 points that beat the baseline) or too straight " +
+		"for a knee, so the most time saved per kWh was taken; 'baseline' rows: no strategy beats the baseline, keep the pack's default policy"
+	);
+}
+
+/** Row rule codes in words, for pages and mail (the export keeps the codes). */
+export const ROW_RULE_WORDS: Record<string, string> = {
+	kneedle: 'knee (Kneedle)',
+	'max-time-saved-per-kWh': 'most time saved per kWh (front too short or straight for a knee)',
+	'fastest-within': 'fastest within the budget',
+	baseline: 'keep the default policy (nothing beats the baseline)'
+};
+
+/** Header lines of the CSV export: "# key: value", one fact each, without line breaks or commas to trip a reader. */
+export function provenanceLines(provenance: CalibrationProvenance, rule: CalibrationRule): string[] {
+	const clean = (t: string) => t.replace(/[\r\n]+/g, ' ').trim();
+	const input = (kind: string, i: ProvenanceInput) =>
+		`# input: ${kind} "${clean(i.name)}" slug ${clean(i.slug)} version ${i.version} (parameter set ${i.parameterSetId})`;
+	return [
+		`# format: ${CALIBRATION_FORMAT}`,
+		`# sweep: ${provenance.sweep.id} "${clean(provenance.sweep.name)}"${provenance.sweep.finishedAt ? ` finished ${provenance.sweep.finishedAt}` : ''}`,
+		input('scenario', provenance.inputs.baseScenario),
+		...provenance.inputs.cells.map((c) => input('cell', c)),
+		...provenance.inputs.packs.map((p) => input('pack', p)),
+		`# rule: ${clean(ruleDescription(rule))}`,
+		`# created: ${provenance.createdAt}`,
+		`# generator: ${clean(provenance.generator)}`
+	];
 }
 
 /**
@@ -397,14 +475,20 @@ function csvNumberCell(v: number | null): string {
 }
 
 /**
- * RFC 4180 CSV: a header line with units in the column names, then one record
- * per row; CRLF line breaks, including after the last record (RFC 4180 §2
+ * RFC 4180 CSV: with provenance, "# key: value" lines first (sweep, each input's
+ * name and version, the rule, creation time, generator; readers skip them as
+ * comments, e.g. papaparse `comments: '#'`), then a header line with units in the
+ * column names, then one record per row; CRLF line breaks, including after the last record (RFC 4180 §2
  * allows it). Missing values (baseline rows, no heater cap) are empty cells.
  */
-export function calibrationCsv(table: readonly CalibrationRow[]): string {
-	const lines: string[] = [CALIBRATION_CSV_HEADER.join(',')];
+export function calibrationCsv(
+	table: readonly CalibrationRow[],
+	provenance?: CalibrationProvenance,
+	rule: CalibrationRule = { kind: 'knee' }
+): string {
+	const lines: string[] = [...(provenance ? provenanceLines(provenance, rule) : []), CALIBRATION_CSV_HEADER.join(',')];
 	for (const row of table) {
-		const r = toExportRow(row);
+		const r = toExportRow(row, provenance);
 		lines.push(
 			CALIBRATION_CSV_HEADER.map((col) => {
 				const v = r[col];
@@ -415,10 +499,13 @@ export function calibrationCsv(table: readonly CalibrationRow[]): string {
 	return lines.join('\r\n') + '\r\n';
 }
 
-export const CALIBRATION_FORMAT = 'paretherm-calibration/1';
+/** Version 2 added provenance, the rule and input names and versions per row. */
+export const CALIBRATION_FORMAT = 'paretherm-calibration/2';
 
 export interface CalibrationJsonDocument {
 	format: typeof CALIBRATION_FORMAT;
+	provenance: CalibrationProvenance | null;
+	rule: CalibrationRule & { description: string };
 	units: Record<keyof CalibrationExportRow, string>;
 	rows: CalibrationExportRow[];
 }
@@ -437,15 +524,25 @@ const UNITS: CalibrationJsonDocument['units'] = {
 	energy_pre_arrival_kWh: 'kilowatt-hour, part of energy_kWh spent before arrival (from the pack)',
 	energy_during_charge_kWh: 'kilowatt-hour, part of energy_kWh spent during the charge (from the grid)',
 	baseline_time_min: 'minute, baseline time to target',
-	rule: "how the row was chosen: 'kneedle', 'max-time-saved-per-kWh', 'fastest-within-<X>-kWh' or 'baseline' (no strategy beats the baseline)"
+	rule: "how the row was chosen: 'kneedle', 'max-time-saved-per-kWh', 'fastest-within-<X>-kWh' or 'baseline' (no strategy beats the baseline)",
+	cell_name: 'name of the cell parameter set version that ran',
+	cell_version: 'version number of the cell parameter set that ran',
+	pack_name: 'name of the pack design version that ran',
+	pack_version: 'version number of the pack design that ran'
 };
 
-/** JSON document tagged `format: 'paretherm-calibration/1'`, units listed per field. */
-export function calibrationJson(table: readonly CalibrationRow[]): string {
+/** JSON document tagged `format: 'paretherm-calibration/2'`: provenance, the rule, units listed per field, rows. */
+export function calibrationJson(
+	table: readonly CalibrationRow[],
+	provenance?: CalibrationProvenance,
+	rule: CalibrationRule = { kind: 'knee' }
+): string {
 	const doc: CalibrationJsonDocument = {
 		format: CALIBRATION_FORMAT,
+		provenance: provenance ?? null,
+		rule: { ...rule, description: ruleDescription(rule) },
 		units: UNITS,
-		rows: table.map(toExportRow)
+		rows: table.map((r) => toExportRow(r, provenance))
 	};
 	return JSON.stringify(doc, null, 2);
 }

@@ -12,6 +12,7 @@ import {
 	calibrationJson,
 	calibrationTable,
 	fastestWithin,
+	type CalibrationProvenance,
 	type CalibrationRule,
 	type EvaluatedPoint,
 	type ScenarioCalibration
@@ -24,6 +25,7 @@ import { inFlightSimulations } from './registry';
 import { planFor } from './service';
 import { scenarioInputsFor, strategyInput, type SweepInputs } from './inputs';
 import { SweepInputError } from './request';
+import { GENERATOR } from '../version';
 
 // ---------------------------------------------------------------------------------------------
 // Lookup
@@ -368,5 +370,18 @@ export async function sweepCalibration(sweep: Sweep, rule: CalibrationRule, form
 		})
 	);
 	const table = calibrationTable(calibrations, rule);
-	return format === 'csv' ? calibrationCsv(table) : calibrationJson(table);
+	const provenance = calibrationProvenance(sweep);
+	return format === 'csv' ? calibrationCsv(table, provenance, rule) : calibrationJson(table, provenance, rule);
+}
+
+/** Where a calibration table comes from: the sweep, the exact input versions it ran, now, and who wrote the file. */
+export function calibrationProvenance(sweep: Sweep): CalibrationProvenance {
+	const { inputs } = sweepStatus(sweep);
+	const input = (r: RefView) => ({ id: r.id, parameterSetId: r.parameterSetId, slug: r.slug, name: r.name, version: r.version });
+	return {
+		sweep: { id: sweep.id, name: sweep.name, finishedAt: iso(sweep.finished_at) },
+		inputs: { baseScenario: input(inputs.baseScenario), cells: inputs.cells.map(input), packs: inputs.packs.map(input) },
+		createdAt: new Date().toISOString(),
+		generator: GENERATOR
+	};
 }

@@ -166,4 +166,25 @@ describe('a new user on the demo program', () => {
 		expect(lines.some((l) => /^# generator: Paretherm \d/.test(l))).toBe(true);
 		await session.signOut();
 	});
+
+	it('should let a program manager decide on a proposed strategy', async () => {
+		await session.signInAs(DEMO.engineer);
+		await go(`/sweeps/${demoSweepId}`);
+		await page.getByRole('link', { name: 'Open the knee point' }).click();
+		await page.waitForURL(/\/points\/\d+$/);
+		await page.getByLabel('Title').fill('Knee of the first demo scenario');
+		await page.getByRole('button', { name: 'Promote to strategy' }).click();
+		await page.waitForURL(/\/strategies\/\d+$/);
+		const strategyUrl = new URL(page.url()).pathname;
+		await session.signOut();
+
+		await session.signInAs(DEMO.manager);
+		await expect(page.getByTestId('role-focus').textContent()).resolves.toContain('awaiting your decision');
+		await page.goto(`${app.url}${strategyUrl}`);
+		await page.getByLabel('Note (optional)').fill('Declined for now: the aged-cell case needs a bench check first.');
+		await page.getByRole('button', { name: 'Decline' }).click();
+		await page.getByText('Strategy is now declined.').waitFor();
+		await expect(page.getByTestId('strategy-state').textContent()).resolves.toBe('Declined');
+		await session.signOut();
+	});
 });

@@ -15,7 +15,7 @@ type Who = 'anonymous' | 'engineer' | 'architect' | 'manager' | 'viewer' | 'outs
 const WHO: Who[] = ['anonymous', 'engineer', 'architect', 'manager', 'viewer', 'outsider', 'admin', 'deactivated'];
 
 /** Who may: public (anyone), token (unknown token → 404 for all), signed-in, member (read), edit
- * (engineer), decide (architect), comment (all but viewer), admin. Admins may do everything. */
+ * (engineer), decide (architect and manager), comment (all but viewer), admin. Admins may do everything. */
 type Rule = 'public' | 'token' | 'signed-in' | 'member' | 'edit' | 'decide' | 'comment' | 'admin';
 
 const RULES: Record<string, Rule> = {
@@ -109,7 +109,7 @@ function allowed(rule: Rule, who: Who): boolean {
 		case 'edit':
 			return role === 'engineer' || role === 'admin';
 		case 'decide':
-			return role === 'architect' || role === 'admin';
+			return role === 'architect' || role === 'manager' || role === 'admin';
 		case 'comment':
 			return role === 'engineer' || role === 'architect' || role === 'manager' || role === 'admin';
 	}

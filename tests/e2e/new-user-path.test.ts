@@ -15,7 +15,7 @@ import { DEMO, ROOT, startApp, tempDataDir, type RunningApp } from '../helpers/a
 import { BrowserSession } from '../helpers/browser';
 import { queryDb } from '../helpers/db-checksum';
 import { DEMO_SWEEP_NAME } from '../../src/lib/server/sweeps/demo';
-import { demoNmcPouch } from '../../src/lib/engine/demo';
+import { demoLfpPrismatic, demoNmcPouch, demoPack } from '../../src/lib/engine/demo';
 
 let app: RunningApp;
 let session: BrowserSession;
@@ -49,6 +49,15 @@ const shot = (name: string) => session.shot(name);
 async function readDownload(d: Download): Promise<string> {
 	const file = await d.path();
 	return fs.readFileSync(file!, 'utf8');
+}
+
+/** The chart's HTML legend ends above its canvas: nothing of the legend sits over the plot. */
+async function expectLegendAbovePlot(scope: ReturnType<Page['locator']>) {
+	const legendBox = await scope.getByTestId('chart-legend').first().boundingBox();
+	await scope.locator('canvas').first().waitFor();
+	const canvasBox = await scope.locator('canvas').first().boundingBox();
+	expect(legendBox && canvasBox).toBeTruthy();
+	expect(legendBox!.y + legendBox!.height).toBeLessThanOrEqual(canvasBox!.y + 0.5);
 }
 
 /** Every row of the sweep's points table (clicks "Show … more" until all are shown). */
@@ -185,6 +194,37 @@ describe('a new user on the demo program', () => {
 		await page.getByRole('button', { name: 'Decline' }).click();
 		await page.getByText('Strategy is now declined.').waitFor();
 		await expect(page.getByTestId('strategy-state').textContent()).resolves.toBe('Declined');
+		await session.signOut();
+	});
+
+	it('should compare variants of finished sweeps scenario by scenario, with legends that name every series in full and stay off the plot', async () => {
+		await session.signInAs(DEMO.architect);
+		await go(`/sweeps/${demoSweepId}`);
+		await page.getByTestId('knee').waitFor();
+		// The all-scenario overlay: every front named in full, no paging, the legend above the plot.
+		const overlay = page.locator('section[aria-labelledby="h-overlay"]');
+		const overlayNames = await overlay.getByTestId('chart-legend').locator('li').allTextContents();
+		const optionNames = await page.getByTestId('scenario-select').locator('option').allTextContents();
+		expect(overlayNames.map((t) => t.trim())).toEqual([...optionNames.map((t) => t.trim()), 'Baseline (no pre-conditioning)']);
+		await expectLegendAbovePlot(overlay);
+
+		await overlay.getByRole('link', { name: /Compare its variants/ }).click();
+		await page.waitForURL(/\/compare\?/);
+		const scenarios = page.getByTestId('compare-scenario');
+		await expect(scenarios.count()).resolves.toBe(4); // 2 ambients × 2 states of health, shared by both cells
+		const first = scenarios.first();
+		const legend = (await first.getByTestId('chart-legend').locator('li').allTextContents()).map((t) => t.trim());
+		expect(legend).toEqual([
+			expect.stringMatching(new RegExp(`^${demoNmcPouch.name} v1 · .+ v1 \\(sweep #${demoSweepId}\\)$`)),
+			expect.stringMatching(new RegExp(`^${demoLfpPrismatic.name} v1 · .+ v1 \\(sweep #${demoSweepId}\\)$`)),
+			'Baseline (no pre-conditioning)'
+		]);
+		await expectLegendAbovePlot(first);
+		await expect(first.getByTestId('knee-table').locator('tbody tr').count()).resolves.toBe(2);
+		const equal = first.getByTestId('equal-energy-table');
+		await expect(equal.locator('tbody tr').count()).resolves.toBeGreaterThan(0);
+		await expect(equal.locator('tbody').textContent()).resolves.toMatch(/\([+−]?\d+\.\d min\)/);
+		await shot('13-compare-variants');
 		await session.signOut();
 	});
 });

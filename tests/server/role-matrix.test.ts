@@ -45,6 +45,7 @@ const RULES: Record<string, Rule> = {
 	'GET /programs/[programId]': 'member',
 	'GET /programs/[programId]/calibration': 'member',
 	'GET /programs/[programId]/checks': 'member',
+	'GET /programs/[programId]/compare': 'member',
 	'POST /programs/[programId]/checks?/upload': 'edit',
 	'POST /programs/[programId]/checks?/run': 'edit',
 	'GET /programs/[programId]/checks/[checkId]': 'member',

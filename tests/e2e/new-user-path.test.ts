@@ -227,4 +227,36 @@ describe('a new user on the demo program', () => {
 		await shot('13-compare-variants');
 		await session.signOut();
 	});
+
+	it('should ask before cancelling a sweep and leave no form address to post again after a post', async () => {
+		await session.signInAs(DEMO.engineer);
+		await go('/sweeps/new');
+		// Large enough (420 simulations, over a minute of work) to be running when it is cancelled.
+		await page.getByLabel('Heater lead times before arrival').fill('0, 5, 10, 15, 20, 30, 45');
+		await page.getByLabel('Coolant set-points').fill('15, 20, 25, 30, 35');
+		await page.getByRole('button', { name: 'Queue sweep' }).click();
+		await page.waitForURL(/\/sweeps\/\d+$/);
+		const sweepPath = new URL(page.url()).pathname;
+		await page.getByText('Cancel sweep…').click();
+		await expect(page.getByRole('dialog', { name: 'Confirm cancelling the sweep' }).isVisible()).resolves.toBe(true);
+		await page.getByRole('button', { name: 'Keep it running' }).click();
+		await expect(page.getByRole('button', { name: 'Yes, cancel the sweep' }).isVisible()).resolves.toBe(false);
+		await page.getByText('Cancel sweep…').click();
+		await page.getByRole('button', { name: 'Yes, cancel the sweep' }).click();
+		await page.getByText('Sweep cancelled. Results already stored are kept.').waitFor();
+		expect(new URL(page.url()).pathname).toBe(sweepPath);
+		expect(page.url()).not.toContain('?/');
+		await expect(page.locator('[data-status]').first().getAttribute('data-status')).resolves.toBe('cancelled');
+
+		// A comment on a strategy: the page comes back at its own address.
+		await go('/strategies');
+		await page.locator('a[href*="/strategies/"]').first().click();
+		await page.waitForURL(/\/strategies\/\d+$/);
+		await page.getByLabel('Add a comment (plain text)').fill('Re-run with the 20 mV margin cell before deciding.');
+		await page.getByRole('button', { name: 'Post comment' }).click();
+		await page.getByText('Comment posted.').waitFor();
+		expect(page.url()).not.toContain('?/');
+		await expect(page.getByLabel('Add a comment (plain text)').inputValue()).resolves.toBe('');
+		await session.signOut();
+	});
 });

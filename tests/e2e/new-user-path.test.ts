@@ -259,4 +259,24 @@ describe('a new user on the demo program', () => {
 		await expect(page.getByLabel('Add a comment (plain text)').inputValue()).resolves.toBe('');
 		await session.signOut();
 	});
+
+	it('should refuse unknown keys in the cell JSON editor, naming the key and the one probably meant', async () => {
+		await session.signInAs(DEMO.engineer);
+		await go('/inputs');
+		await page.getByRole('link', { name: demoLfpPrismatic.name, exact: true }).click();
+		await page.waitForURL(/\/inputs\/\d+$/);
+		const heading = (await page.locator('h1').textContent())!;
+		const json = JSON.parse(await page.locator('textarea[name="json"]').inputValue());
+		json.limits.anodePotentialMargin_mV = 20;
+		await page.locator('textarea[name="json"]').fill(JSON.stringify(json, null, 2));
+		await page.getByRole('button', { name: 'Save as new version' }).click();
+		const error = page.getByTestId('input-error');
+		await error.waitFor();
+		await expect(error.textContent()).resolves.toContain('Unknown key “limits.anodePotentialMargin_mV” (did you mean “anodePotentialMargin_V”?)');
+		// Nothing was saved: the same version, and the edited text is still there to fix.
+		await go('/inputs');
+		await page.getByRole('link', { name: demoLfpPrismatic.name, exact: true }).click();
+		await expect(page.locator('h1').textContent()).resolves.toBe(heading);
+		await session.signOut();
+	});
 });

@@ -12,6 +12,7 @@ import { Op } from 'sequelize';
 import type { ZodError, ZodTypeAny } from 'zod';
 import { cellParamsSchema, packDesignSchema, scenarioSchema } from '../engine/schemas';
 import { ParameterSet, type ParameterKind } from './db/models/index';
+import { unknownKeys, unknownKeysMessage } from '../unknown-keys';
 import { sequelize } from './db/index';
 
 export const PARAMETER_FORMAT = 'paretherm-parameters/1';
@@ -48,8 +49,14 @@ export function firstIssue(err: ZodError): { message: string; field: string } {
 	return { message: field ? `${field}: ${issue.message}` : issue.message, field };
 }
 
-/** Validates engine data for a kind; returns the parsed (defaults filled) object or throws InputError. */
+/**
+ * Validates engine data for a kind; returns the parsed (defaults filled) object or throws InputError.
+ * Keys the schema does not know are refused, named, with the likely intended key (a typo would
+ * otherwise be dropped silently and save a version that differs from what was meant).
+ */
 export function validateInput(kind: ParameterKind, data: unknown): Record<string, unknown> {
+	const unknown = unknownKeys(SCHEMA[kind], data);
+	if (unknown.length > 0) throw new InputError(unknownKeysMessage(unknown), unknown[0].path);
 	const parsed = SCHEMA[kind].safeParse(data);
 	if (!parsed.success) {
 		const { message, field } = firstIssue(parsed.error);

@@ -279,4 +279,43 @@ describe('a new user on the demo program', () => {
 		await expect(page.locator('h1').textContent()).resolves.toBe(heading);
 		await session.signOut();
 	});
+
+	it('should check the sweep builder as the user types, list every problem and keep "Queue sweep" off until they are fixed', async () => {
+		await session.signInAs(DEMO.engineer);
+		await go('/sweeps/new');
+		const queue = page.getByRole('button', { name: 'Queue sweep' });
+		const live = page.getByTestId('live-problems');
+		await expect(queue.isEnabled()).resolves.toBe(true);
+
+		await page.getByLabel('Ambient temperatures').fill('-20, abc, 70');
+		await page.getByLabel('States of health').fill('100, 100');
+		await page.getByLabel('User rule: fastest within').fill('-1');
+		await live.waitFor();
+		const text = (await live.textContent())!;
+		expect(text).toContain('“abc” is not a number');
+		expect(text).toContain('appears twice');
+		expect(text).toContain('The energy budget must be zero or more kWh');
+		expect(text).not.toMatch(/watt-hours|more problem\)/);
+		await expect(live.locator('li').count()).resolves.toBe(3);
+		await expect(queue.isDisabled()).resolves.toBe(true);
+		expect(page.url()).toMatch(/\/sweeps\/new$/); // nothing was posted
+
+		await page.getByLabel('Ambient temperatures').fill('-20, -10, 70');
+		await expect(live.textContent()).resolves.toContain('Ambient temperature 70 °C is out of range');
+
+		// Over the grid limit: 200 lead times × 100 set-points.
+		await page.getByLabel('Ambient temperatures').fill('-20');
+		await page.getByLabel('States of health').fill('100');
+		await page.getByLabel('User rule: fastest within').fill('1.5');
+		await page.getByLabel('Heater lead times before arrival').fill(Array.from({ length: 200 }, (_, i) => (i * 0.5).toFixed(1)).join(', '));
+		await page.getByLabel('Coolant set-points').fill(Array.from({ length: 100 }, (_, i) => (10 + i * 0.25).toFixed(2)).join(', '));
+		await expect(live.textContent()).resolves.toMatch(/the limit is 20000/);
+		await expect(queue.isDisabled()).resolves.toBe(true);
+
+		await page.getByLabel('Heater lead times before arrival').fill('0, 10');
+		await page.getByLabel('Coolant set-points').fill('25');
+		await page.getByTestId('live-ok').waitFor();
+		await expect(queue.isEnabled()).resolves.toBe(true);
+		await session.signOut();
+	});
 });

@@ -318,4 +318,68 @@ describe('a new user on the demo program', () => {
 		await expect(queue.isEnabled()).resolves.toBe(true);
 		await session.signOut();
 	});
+
+	it('should fit every page on a 390 px phone, with wide tables scrolling inside their own box', async () => {
+		await session.signInAs(DEMO.admin);
+		await page.setViewportSize({ width: 390, height: 844 });
+		try {
+			// Ids to visit, read as the pages link them.
+			await go(`/sweeps/${demoSweepId}`);
+			await page.getByTestId('knee').waitFor();
+			const pointPath = (await page.getByRole('link', { name: 'Open the knee point' }).getAttribute('href'))!;
+			await go('/strategies');
+			const strategyPath = (await page.locator('a[href*="/strategies/"]').first().getAttribute('href'))!;
+			await go('/checks');
+			const checkPath = (await page.locator('a[href*="/checks/"]:not([href*="uploads"])').first().getAttribute('href'))!;
+			await go('/inputs');
+			const inputPath = (await page.getByTestId('input-item').first().getByRole('link').getAttribute('href'))!;
+			await page.goto(`${app.url}/admin/outbox`);
+			const messagePath = (await page.locator('a[href^="/admin/outbox/"]').first().getAttribute('href'))!;
+			const compare = `${programPath}/compare?v=${encodeURIComponent(`${demoSweepId}:${demoNmcPouch.id}:${demoPack.id}`)}&v=${encodeURIComponent(`${demoSweepId}:${demoLfpPrismatic.id}:${demoPack.id}`)}`;
+			const paths = [
+				programPath,
+				`${programPath}/inputs`,
+				inputPath,
+				`${programPath}/sweeps`,
+				`${programPath}/sweeps/new`,
+				`${programPath}/sweeps/${demoSweepId}`,
+				pointPath,
+				`${programPath}/strategies`,
+				strategyPath,
+				`${programPath}/calibration`,
+				compare,
+				`${programPath}/checks`,
+				checkPath,
+				'/admin',
+				'/admin/programs',
+				'/admin/outbox',
+				messagePath,
+				'/settings'
+			];
+			const wide: string[] = [];
+			for (const p of paths) {
+				await page.goto(`${app.url}${p}`);
+				await page.waitForLoadState('networkidle');
+				const width = await page.evaluate(() => document.documentElement.scrollWidth);
+				if (width > 390) wide.push(`${p}: ${width} px`);
+			}
+			expect(wide).toEqual([]);
+
+			// Legends stay off the plots on a phone too.
+			await go(`/sweeps/${demoSweepId}`);
+			await page.getByTestId('knee').waitFor();
+			await expectLegendAbovePlot(page.locator('section[aria-labelledby="h-scenario"]'));
+			await expectLegendAbovePlot(page.locator('section[aria-labelledby="h-overlay"]'));
+			await shot('14-sweep-page-390px');
+			await page.goto(`${app.url}${compare}`);
+			await page.getByTestId('compare-scenario').first().locator('canvas').first().waitFor();
+			await shot('15-compare-variants-390px');
+			await session.signOut();
+			await session.signInAs(DEMO.manager);
+			await shot('16-manager-overview-390px');
+			await session.signOut();
+		} finally {
+			await page.setViewportSize({ width: 1360, height: 900 });
+		}
+	});
 });

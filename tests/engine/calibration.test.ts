@@ -9,7 +9,9 @@ import {
 	calibrationJson,
 	calibrationTable,
 	fastestWithin,
+	frontWithBaseline,
 	pickKnee,
+	type CalibrationProvenance,
 	type EvaluatedPoint,
 	type RatedPoint,
 	type ScenarioCalibration,
@@ -85,7 +87,8 @@ describe('calibrateScenario', () => {
 			])
 		);
 		expect(c.noStrategyBeatsBaseline).toBe(false);
-		expect(c.front.map((p) => p.energy_Wh)).toEqual([20, 100, 200, 300, 600, 1000]);
+		// (20 Wh, −100 s) is slower than the baseline, which dominates it: not on the front.
+		expect(c.front.map((p) => p.energy_Wh)).toEqual([100, 200, 300, 600, 1000]);
 		expect(c.knee).toEqual({ point: expect.objectContaining({ energy_Wh: 300, timeSaved_s: 1500 }), method: 'kneedle' });
 	});
 
@@ -135,6 +138,92 @@ describe('calibrateScenario', () => {
 			}),
 			{ numRuns: 300 }
 		);
+	});
+});
+
+describe('the baseline on the front', () => {
+	// Definition of Pareto dominance (common practice, no source) applied to the candidate set
+	// {baseline (0 Wh, 0 s)} ∪ strategies: keeping the pack's default policy is always possible.
+	it('should keep strategies the baseline dominates off the front (slower for more energy)', () => {
+		// Shape seen in a cold-morning sweep: short lead times spend 0.18 and 0.24 kWh and
+		// charge 10.9 and 18.8 min slower than the baseline; longer ones save time.
+		const c = calibrateScenario(
+			evaluation(3600, [
+				pt(180, 3600 + 10.9 * 60),
+				pt(240, 3600 + 18.8 * 60),
+				pt(900, 3600 - 300),
+				pt(1500, 3600 - 600),
+				pt(2400, 3600 - 700)
+			])
+		);
+		expect(c.front.map((p) => p.energy_Wh)).toEqual([900, 1500, 2400]);
+		expect(c.front.every((p) => p.timeSaved_s >= 0)).toBe(true);
+		expect(c.baselineOnFront).toBe(true);
+		expect(c.points.filter((p) => p.timeSaved_s < 0).every((p) => !c.front.includes(p))).toBe(true);
+	});
+
+	it('should never put a slower-than-baseline strategy on the front, even when it spends less energy', () => {
+		// Rule stated in calibration.ts: negative time saved is never on a front.
+		const c = calibrateScenario(evaluation(3600, [pt(-50, 3660), pt(300, 3400)]));
+		expect(c.front.map((p) => p.energy_Wh)).toEqual([300]);
+		expect(c.baselineOnFront).toBe(true);
+		expect(fastestWithin(c.front, 0)).toBeNull();
+	});
+
+	it('should say when a strategy dominates the baseline', () => {
+		// (−20 Wh, +60 s) saves time and energy: the baseline is dominated (definition, no source).
+		const c = calibrateScenario(evaluation(3600, [pt(-20, 3540), pt(400, 3300)]));
+		expect(c.baselineOnFront).toBe(false);
+		expect(c.front.map((p) => p.energy_Wh)).toEqual([-20, 400]);
+	});
+
+	it('should match a brute-force front of baseline and strategies on random sets', () => {
+		// Brute-force reference straight from the dominance definition (common practice, no source).
+		const pairArb = fc.tuple(fc.integer({ min: -5, max: 5 }), fc.integer({ min: -5, max: 5 }));
+		fc.assert(
+			fc.property(fc.array(pairArb, { maxLength: 30 }), (pairs) => {
+				const pts = pairs.map(([e, t]) => ({ energy_Wh: e, timeSaved_s: t }));
+				const all = [{ energy_Wh: 0, timeSaved_s: 0 }, ...pts];
+				const dominated = (p: { energy_Wh: number; timeSaved_s: number }) =>
+					all.some((q) => q.energy_Wh <= p.energy_Wh && q.timeSaved_s >= p.timeSaved_s && (q.energy_Wh < p.energy_Wh || q.timeSaved_s > p.timeSaved_s));
+				const expected = pts.filter((p) => p.timeSaved_s >= 0 && !dominated(p));
+				const got = frontWithBaseline(pts);
+				expect(new Set(got.front)).toEqual(new Set(expected));
+				expect(got.baselineOnFront).toBe(!dominated(all[0]));
+			}),
+			{ numRuns: 300 }
+		);
+	});
+
+	it('should keep the knee and the rule pick on the front', () => {
+		// Consistency of the picks with the front (brief); common practice, no source.
+		fc.assert(
+			fc.property(
+				fc.array(fc.tuple(fc.integer({ min: -200, max: 3000 }), fc.integer({ min: 2000, max: 5000 })), { maxLength: 30 }),
+				fc.integer({ min: 0, max: 3000 }),
+				(pairs, budget) => {
+					const c = calibrateScenario(evaluation(3600, pairs.map(([e, t]) => pt(e, t))));
+					if (c.knee) expect(c.front).toContain(c.knee.point);
+					const rule = fastestWithin(c.front, budget);
+					if (rule) expect(rule.timeSaved_s).toBeGreaterThan(0);
+					expect(rule?.timeSaved_s ?? null).toBe(fastestWithin(c.points, budget)?.timeSaved_s ?? null);
+				}
+			),
+			{ numRuns: 200 }
+		);
+	});
+
+	it('should measure the knee from where the front starts when a zero-saving strategy dominates the baseline', () => {
+		// Satopää et al. 2011, steps 2–6, hand computed. The front starts at (−1000 Wh, 0 s):
+		// x_s = (E + 1000)/2000 = 0, 0.55, 0.65, 0.85, 1 and y_s = t/1410 = 0, 0.284, 0.638, 0.922, 1
+		// ⇒ d = 0, −0.266, −0.012, 0.072, 0; the only local maximum (0.072 at 700 Wh) has
+		// T = 0.072 − 1/4 < 0, so no knee and the time-saved-per-kWh fallback picks 100 Wh
+		// (4 s/Wh). Measured from (0 Wh, 0 s) instead, d = 0, 0.184, 0.338, 0.222, 0 and the
+		// knee would be 300 Wh: the two starts are told apart.
+		const c = calibrateScenario(evaluation(3600, [pt(-1000, 3600), pt(100, 3200), pt(300, 2700), pt(700, 2300), pt(1000, 2190)]));
+		expect(c.baselineOnFront).toBe(false);
+		expect(c.front[0].energy_Wh).toBe(-1000);
+		expect(c.knee).toEqual({ point: expect.objectContaining({ energy_Wh: 100 }), method: 'max-time-saved-per-kWh' });
 	});
 });
 
@@ -264,7 +353,7 @@ describe('calibration table and exports', () => {
 		const t = calibrationTable(calibrations, { kind: 'fastest-within', maxEnergy_Wh: 650 });
 		expect(t[0]).toMatchObject({ energy_Wh: 600, timeSaved_s: 1600, rule: 'fastest-within' });
 		expect(t[2]).toMatchObject({ leadTime_s: null, rule: 'baseline' }); // 1500 Wh is over budget
-		expect(calibrationCsv(t).split('\r\n')[1].endsWith(',fastest-within-0.65-kWh')).toBe(true);
+		expect(calibrationCsv(t).split('\r\n')[1].endsWith(',fastest-within-0.65-kWh,,,,')).toBe(true);
 	});
 
 	it('should write the header with units and convert K→°C, s→min, Wh→kWh', () => {
@@ -273,11 +362,13 @@ describe('calibration table and exports', () => {
 		const lines = csv.split('\r\n');
 		expect(lines[0]).toBe(
 			'ambient_C,state_of_health,arrival_soc,cell,pack,lead_time_min,setpoint_C,heater_power_cap_kW,' +
-				'time_saved_min,energy_kWh,energy_pre_arrival_kWh,energy_during_charge_kWh,baseline_time_min,rule'
+				'time_saved_min,energy_kWh,energy_pre_arrival_kWh,energy_during_charge_kWh,baseline_time_min,rule,' +
+				'cell_name,cell_version,pack_name,pack_version'
 		);
 		// 263.15 K = −10 °C, 1800 s = 30 min, 298.15 K = 25 °C, 6000 W = 6 kW,
 		// 1500 s = 25 min, 300 Wh = 0.3 kWh (0.18 + 0.12), 5000 s = 83.333333 min.
-		expect(lines[1]).toBe('-10,0.9,0.2,cell-a,pack-1,30,25,6,25,0.3,0.18,0.12,83.333333,kneedle');
+		// Without provenance the name and version columns are empty.
+		expect(lines[1]).toBe('-10,0.9,0.2,cell-a,pack-1,30,25,6,25,0.3,0.18,0.12,83.333333,kneedle,,,,');
 		expect(csv.endsWith('\r\n')).toBe(true);
 	});
 
@@ -332,11 +423,62 @@ describe('calibration table and exports', () => {
 		// Export format requirement (brief); common practice, no source.
 		const doc = JSON.parse(calibrationJson(table));
 		expect(doc.format).toBe(CALIBRATION_FORMAT);
-		expect(doc.format).toBe('paretherm-calibration/1');
+		expect(doc.format).toBe('paretherm-calibration/2');
 		expect(Object.keys(doc.units).sort()).toEqual([...CALIBRATION_CSV_HEADER].sort());
 		expect(Object.keys(doc.rows[0]).sort()).toEqual([...CALIBRATION_CSV_HEADER].sort());
 		expect(doc.rows[0]).toMatchObject({ ambient_C: -10, lead_time_min: 30, setpoint_C: 25, energy_kWh: 0.3, time_saved_min: 25 });
 		expect(doc.rows[1]).toMatchObject({ lead_time_min: null, setpoint_C: null, rule: 'baseline', cell: '=HYPERLINK("http://x","y")' });
+	});
+});
+
+describe('calibration provenance', () => {
+	// Export requirement (common practice for traceable data, no source): a table says which sweep,
+	// which exact input versions, which rule, when and by what it was made.
+	const table = calibrationTable([
+		calibrateScenario(evaluation(3600, [pt(1000, 3000), pt(100, 3300)], { ...scenario, cellId: 'cell-a@3', packId: 'pack-1' }))
+	]);
+	const provenance: CalibrationProvenance = {
+		sweep: { id: 42, name: 'Winter depot, study\nB', finishedAt: '2026-01-05T06:30:00.000Z' },
+		inputs: {
+			baseScenario: { id: 'depot', parameterSetId: 7, slug: 'depot', name: 'Depot, cold', version: 2 },
+			cells: [{ id: 'cell-a@3', parameterSetId: 11, slug: 'cell-a', name: 'Cell A 20 mV margin', version: 3 }],
+			packs: [{ id: 'pack-1', parameterSetId: 12, slug: 'pack-1', name: 'Pack one', version: 1 }]
+		},
+		createdAt: '2026-01-06T08:00:00.000Z',
+		generator: 'Paretherm 9.9.9'
+	};
+
+	it('should put the sweep, every input version, the rule, the time and the generator in the JSON', () => {
+		const doc = JSON.parse(calibrationJson(table, provenance, { kind: 'knee' }));
+		expect(doc.provenance).toEqual(provenance);
+		expect(doc.rule).toMatchObject({ kind: 'knee' });
+		expect(doc.rule.description).toMatch(/knee/);
+		expect(doc.rows[0]).toMatchObject({ cell: 'cell-a@3', cell_name: 'Cell A 20 mV margin', cell_version: 3, pack_name: 'Pack one', pack_version: 1, rule: 'max-time-saved-per-kWh' });
+		const budget = JSON.parse(calibrationJson(table, provenance, { kind: 'fastest-within', maxEnergy_Wh: 650 }));
+		expect(budget.rule).toMatchObject({ kind: 'fastest-within', maxEnergy_Wh: 650 });
+		expect(budget.rule.description).toMatch(/0\.65 kWh/);
+	});
+
+	it('should write the same facts as # lines above the CSV header that a comment-aware reader skips', () => {
+		const csv = calibrationCsv(table, provenance, { kind: 'knee' });
+		const lines = csv.split('\r\n');
+		const head = lines.filter((l) => l.startsWith('#'));
+		expect(head).toEqual([
+			'# format: paretherm-calibration/2',
+			'# sweep: 42 "Winter depot, study B" finished 2026-01-05T06:30:00.000Z',
+			'# input: scenario "Depot, cold" slug depot version 2 (parameter set 7)',
+			'# input: cell "Cell A 20 mV margin" slug cell-a version 3 (parameter set 11)',
+			'# input: pack "Pack one" slug pack-1 version 1 (parameter set 12)',
+			expect.stringMatching(/^# rule: knee of each front/),
+			'# created: 2026-01-06T08:00:00.000Z',
+			'# generator: Paretherm 9.9.9'
+		]);
+		expect(lines[head.length]).toBe(CALIBRATION_CSV_HEADER.join(','));
+		// papaparse's comment option as the independent reader.
+		const parsed = Papa.parse<string[]>(csv, { delimiter: ',', newline: '\r\n', comments: '#', skipEmptyLines: true });
+		expect(parsed.errors).toEqual([]);
+		expect(parsed.data[0]).toEqual([...CALIBRATION_CSV_HEADER]);
+		expect(parsed.data[1][CALIBRATION_CSV_HEADER.indexOf('cell_version')]).toBe('3');
 	});
 });
 

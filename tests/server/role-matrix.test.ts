@@ -15,7 +15,7 @@ type Who = 'anonymous' | 'engineer' | 'architect' | 'manager' | 'viewer' | 'outs
 const WHO: Who[] = ['anonymous', 'engineer', 'architect', 'manager', 'viewer', 'outsider', 'admin', 'deactivated'];
 
 /** Who may: public (anyone), token (unknown token → 404 for all), signed-in, member (read), edit
- * (engineer), decide (architect), comment (all but viewer), admin. Admins may do everything. */
+ * (engineer), decide (architect and manager), comment (all but viewer), admin. Admins may do everything. */
 type Rule = 'public' | 'token' | 'signed-in' | 'member' | 'edit' | 'decide' | 'comment' | 'admin';
 
 const RULES: Record<string, Rule> = {
@@ -45,6 +45,7 @@ const RULES: Record<string, Rule> = {
 	'GET /programs/[programId]': 'member',
 	'GET /programs/[programId]/calibration': 'member',
 	'GET /programs/[programId]/checks': 'member',
+	'GET /programs/[programId]/compare': 'member',
 	'POST /programs/[programId]/checks?/upload': 'edit',
 	'POST /programs/[programId]/checks?/run': 'edit',
 	'GET /programs/[programId]/checks/[checkId]': 'member',
@@ -109,7 +110,7 @@ function allowed(rule: Rule, who: Who): boolean {
 		case 'edit':
 			return role === 'engineer' || role === 'admin';
 		case 'decide':
-			return role === 'architect' || role === 'admin';
+			return role === 'architect' || role === 'manager' || role === 'admin';
 		case 'comment':
 			return role === 'engineer' || role === 'architect' || role === 'manager' || role === 'admin';
 	}

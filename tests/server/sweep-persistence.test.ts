@@ -191,13 +191,20 @@ describe('finalising a sweep', () => {
 		}
 	});
 
-	it('should mark exactly the non-dominated feasible points as the front', async () => {
+	it('should mark exactly the feasible points that neither the baseline nor another strategy dominates as the front', async () => {
 		const { scenarios } = await sweepFronts(sweep);
 		expect(scenarios).toHaveLength(2);
 		for (const sc of scenarios) {
 			const all = await SweepPoint.findAll({ where: { sweep_id: sweep.id, scenario_index: sc.scenarioIndex } });
 			const strategies = all.filter((p) => p.strategy_index !== null && p.feasible);
-			const expected = paretoFront(strategies, (p) => p.energy_Wh!, (p) => p.time_saved_s!).map((p) => p.id);
+			// The baseline (0 Wh, 0 s) is a candidate, and a strategy slower than it is never on a
+			// front (definition of dominance, common practice, no source).
+			const origin = { id: -1, energy_Wh: 0, time_saved_s: 0 };
+			const candidates = [origin, ...strategies.filter((p) => p.time_saved_s! >= 0).map((p) => ({ id: p.id, energy_Wh: p.energy_Wh!, time_saved_s: p.time_saved_s! }))];
+			const expected = paretoFront(candidates, (p) => p.energy_Wh, (p) => p.time_saved_s)
+				.filter((p) => p !== origin)
+				.map((p) => p.id);
+			expect(sc.front.every((p) => p.timeSaved_s! >= 0)).toBe(true);
 			expect(sc.front.map((p) => p.id)).toEqual(expected);
 			expect(all.filter((p) => p.on_front).map((p) => p.id).sort()).toEqual([...expected].sort());
 			if (sc.knee) expect(expected).toContain(sc.knee.id);

@@ -265,7 +265,9 @@ describe('uploads and model checks over HTTP', () => {
 	it('should take comments on a check from commenters only', async () => {
 		const checkId = (await queryDb<{ id: number }>(app.dataDir, "SELECT id FROM model_checks WHERE title = 'Noise recovery'"))[0].id;
 		const posted = await clients.manager.form(`/programs/${programId}/checks/${checkId}?/comment`, { body: 'RMSE matches the bench noise; good enough for the cold-charge study.' });
-		expect(posted.status).toBe(200);
+		// Post/redirect/get: back to the check's page, so a reload cannot post the comment twice.
+		expect(posted.status).toBe(303);
+		expect(posted.headers.get('location')).toBe(`/programs/${programId}/checks/${checkId}?done=commented`);
 		expect(await (await clients.viewer.get(`/programs/${programId}/checks/${checkId}`)).text()).toContain('good enough for the cold-charge study');
 		const before = await databaseChecksum(app.dataDir);
 		expect((await clients.viewer.form(`/programs/${programId}/checks/${checkId}?/comment`, { body: 'viewer' })).status).toBe(403);

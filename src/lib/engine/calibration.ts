@@ -11,16 +11,25 @@
  *   strategy; energyPreArrival_Wh + energyDuringCharge_Wh are its two parts.
  * - The baseline is the reference, so it stands for (0 Wh, 0 s).
  *
+ * Front: the baseline belongs to the candidate set. "Doing nothing different"
+ * is always available, so a strategy it dominates (as much or more energy for
+ * as little or less time saved) is never on the front, and a strategy that is
+ * slower than the baseline (timeSaved_s < 0) is never on it either, even when
+ * it spends less energy than the baseline (keeping the default policy is the
+ * better answer to "charge sooner"). `front` lists the strategies only;
+ * `baselineOnFront` says whether the baseline itself is non-dominated, i.e.
+ * whether the front line starts at the origin.
+ *
  * Recommendation ("knee" rule):
  * - Candidates are front points that strictly beat the baseline
  *   (timeSaved_s > 0). If there are none, `noStrategyBeatsBaseline` is true
  *   and nothing is recommended: keep the pack's default policy.
  * - With three or more candidates, Kneedle (Satopää et al., ICDCS Workshops
- *   2011; see kneedle.ts) runs on time saved against energy along the
- *   candidates. When every candidate costs energy (> 0 Wh) the baseline point
- *   (0 Wh, 0 s) is put in front of them as the curve's origin, so the knee is
- *   measured from "do nothing different"; a candidate with energy ≤ 0 already
- *   dominates that origin, so then no origin is added.
+ *   2011; see kneedle.ts) runs on time saved against energy along the front,
+ *   starting where the front starts: at the baseline (0 Wh, 0 s) when it is
+ *   on the front, otherwise at the cheapest front point that saves no time
+ *   (energy < 0, time saved 0) if there is one. A candidate with energy ≤ 0
+ *   dominates the origin, so then no origin is added.
  * - Fallback (one or two candidates, or Kneedle finds no knee): the candidate
  *   with the most time saved per kWh. Candidates with energy ≤ 0 save time
  *   for free and rank above all others; among those, the most time saved
@@ -78,8 +87,13 @@ export interface ScenarioCalibration {
 	baselineTimeToTarget_s: number;
 	/** Every input point, in input order, with timeSaved_s. */
 	points: RatedPoint[];
-	/** Non-dominated feasible points, energy ascending (includes points that do not beat baseline). */
+	/**
+	 * Strategies on the front of {baseline, feasible strategies}, energy ascending: none is
+	 * dominated by the baseline or another strategy, and none is slower than the baseline.
+	 */
 	front: RatedPoint[];
+	/** True when no strategy dominates the baseline, so the front starts at (0 Wh, 0 s). */
+	baselineOnFront: boolean;
 	/** Recommended point by the knee rule, or null when no strategy beats the baseline. */
 	knee: Pick | null;
 	noStrategyBeatsBaseline: boolean;
@@ -119,32 +133,57 @@ export function calibrateScenario(
 		...p,
 		timeSaved_s: baseline_s - p.timeToTarget_s
 	}));
-	const front = paretoFront(points.filter(isUsable), energyOf, gainOf);
+	const { front, baselineOnFront } = frontWithBaseline(points.filter(isUsable));
 	const candidates = front.filter((p) => p.timeSaved_s > 0);
+	// Where the front starts: the baseline, or a strategy saving no time for less energy.
+	const start = baselineOnFront ? BASELINE_ORIGIN : front.find((p) => p.timeSaved_s <= 0);
 	return {
 		scenario: evaluation.scenario,
 		baselineTimeToTarget_s: baseline_s,
 		points,
 		front,
-		knee: pickKnee(candidates, options.sensitivity),
+		baselineOnFront,
+		knee: pickKnee(candidates, options.sensitivity, start ?? null),
 		noStrategyBeatsBaseline: candidates.length === 0
 	};
+}
+
+const BASELINE_ORIGIN = { energy_Wh: 0, timeSaved_s: 0 };
+
+/**
+ * Front of the baseline (0 Wh, 0 s) together with `usable` strategies (feasible, finite), with
+ * strategies slower than the baseline left out. Returns the strategies on it (energy ascending,
+ * as paretoFront orders them) and whether the baseline itself is on it. Exported for the
+ * comparison of fronts and for tests.
+ */
+export function frontWithBaseline<T extends { energy_Wh: number; timeSaved_s: number }>(
+	usable: readonly T[]
+): { front: T[]; baselineOnFront: boolean } {
+	const origin = BASELINE_ORIGIN as T;
+	const candidates = [origin, ...usable.filter((p) => p.timeSaved_s >= 0)];
+	const all = paretoFront(candidates, (p) => p.energy_Wh, (p) => p.timeSaved_s);
+	return { front: all.filter((p) => p !== origin), baselineOnFront: all.includes(origin) };
 }
 
 /**
  * Knee rule on front points that beat the baseline (energy ascending, as
  * returned by paretoFront). Exported for testing and for re-picking with a
- * different sensitivity.
+ * different sensitivity. `origin` is where the front starts (default: the baseline at
+ * (0 Wh, 0 s)); it is put in front of the candidates when all of them cost more energy.
  */
-export function pickKnee(candidates: readonly RatedPoint[], sensitivity = 1): Pick | null {
+export function pickKnee(
+	candidates: readonly RatedPoint[],
+	sensitivity = 1,
+	origin: { energy_Wh: number; timeSaved_s: number } | null = BASELINE_ORIGIN
+): Pick | null {
 	if (candidates.length === 0) return null;
 	if (candidates.length >= 3) {
-		const withOrigin = candidates.every((p) => p.energy_Wh > 0);
+		const withOrigin = origin !== null && candidates.every((p) => p.energy_Wh > origin.energy_Wh);
 		const x = candidates.map(energyOf);
 		const y = candidates.map(gainOf);
 		if (withOrigin) {
-			x.unshift(0);
-			y.unshift(0);
+			x.unshift(origin.energy_Wh);
+			y.unshift(origin.timeSaved_s);
 		}
 		const { kneeIndex } = kneedle(x, y, { sensitivity });
 		if (kneeIndex !== null) {
@@ -295,7 +334,11 @@ export const CALIBRATION_CSV_HEADER = [
 	'energy_pre_arrival_kWh',
 	'energy_during_charge_kWh',
 	'baseline_time_min',
-	'rule'
+	'rule',
+	'cell_name',
+	'cell_version',
+	'pack_name',
+	'pack_version'
 ] as const;
 
 export interface CalibrationExportRow {
@@ -313,6 +356,11 @@ export interface CalibrationExportRow {
 	energy_during_charge_kWh: number | null;
 	baseline_time_min: number | null;
 	rule: string;
+	/** Name and version of the input that ran (empty without provenance). */
+	cell_name: string;
+	cell_version: number | null;
+	pack_name: string;
+	pack_version: number | null;
 }
 
 function ruleLabel(row: CalibrationRow): string {
@@ -323,7 +371,9 @@ function ruleLabel(row: CalibrationRow): string {
 }
 
 /** A table row in export units (°C, min, kWh, kW; fractions for SOH and SOC). */
-export function toExportRow(row: CalibrationRow): CalibrationExportRow {
+export function toExportRow(row: CalibrationRow, provenance?: CalibrationProvenance): CalibrationExportRow {
+	const cell = provenance?.inputs.cells.find((c) => c.id === row.cellId);
+	const pack = provenance?.inputs.packs.find((p) => p.id === row.packId);
 	return {
 		ambient_C: out(row.ambient_K, toC),
 		state_of_health: out(row.stateOfHealth),
@@ -338,29 +388,109 @@ export function toExportRow(row: CalibrationRow): CalibrationExportRow {
 		energy_pre_arrival_kWh: out(row.energyPreArrival_Wh, toK),
 		energy_during_charge_kWh: out(row.energyDuringCharge_Wh, toK),
 		baseline_time_min: out(row.baselineTimeToTarget_s, toMin),
-		rule: ruleLabel(row)
+		rule: ruleLabel(row),
+		cell_name: cell?.name ?? '',
+		cell_version: cell?.version ?? null,
+		pack_name: pack?.name ?? '',
+		pack_version: pack?.version ?? null
 	};
+}
+
+// ---------------------------------------------------------------------------
+// Provenance: where a calibration table came from.
+
+/** One input a sweep ran: the id as written in its definition, and the exact version. */
+export interface ProvenanceInput {
+	/** Id as written in the sweep definition (slug, or slug@version). */
+	id: string;
+	/** Id of the stored parameter set (that exact version). */
+	parameterSetId: number;
+	slug: string;
+	name: string;
+	version: number;
+}
+
+export interface CalibrationProvenance {
+	sweep: { id: number; name: string; finishedAt: string | null };
+	inputs: { baseScenario: ProvenanceInput; cells: ProvenanceInput[]; packs: ProvenanceInput[] };
+	/** ISO 8601 time the export was made. */
+	createdAt: string;
+	/** Product and version that wrote the file, e.g. "Paretherm 0.1.0". */
+	generator: string;
+}
+
+/** The selection rule in words, the same on the page and in both exports. */
+export function ruleDescription(rule: CalibrationRule): string {
+	if (rule.kind === 'fastest-within') {
+		return (
+			`fastest within ${out(rule.maxEnergy_Wh, toK)} kWh: per scenario the strategy with the most time saved ` +
+			`whose net energy is at most the budget; rows marked 'baseline' have none within the budget that beats the baseline`
+		);
+	}
+	return (
+		"knee of each front: rows marked 'kneedle' are the Kneedle knee (Satopaa et al., ICDCS Workshops 2011); " +
+		"'max-time-saved-per-kWh' rows had a front too short (fewer than 3 points that beat the baseline) or too straight " +
+		"for a knee, so the most time saved per kWh was taken; 'baseline' rows: no strategy beats the baseline, keep the pack's default policy"
+	);
+}
+
+/** Row rule codes in words, for pages and mail (the export keeps the codes). */
+export const ROW_RULE_WORDS: Record<string, string> = {
+	kneedle: 'knee (Kneedle)',
+	'max-time-saved-per-kWh': 'most time saved per kWh (front too short or straight for a knee)',
+	'fastest-within': 'fastest within the budget',
+	baseline: 'keep the default policy (nothing beats the baseline)'
+};
+
+/** Header lines of the CSV export: "# key: value", one fact each, without line breaks or commas to trip a reader. */
+export function provenanceLines(provenance: CalibrationProvenance, rule: CalibrationRule): string[] {
+	const clean = (t: string) => t.replace(/[\r\n]+/g, ' ').trim();
+	const input = (kind: string, i: ProvenanceInput) =>
+		`# input: ${kind} "${clean(i.name)}" slug ${clean(i.slug)} version ${i.version} (parameter set ${i.parameterSetId})`;
+	return [
+		`# format: ${CALIBRATION_FORMAT}`,
+		`# sweep: ${provenance.sweep.id} "${clean(provenance.sweep.name)}"${provenance.sweep.finishedAt ? ` finished ${provenance.sweep.finishedAt}` : ''}`,
+		input('scenario', provenance.inputs.baseScenario),
+		...provenance.inputs.cells.map((c) => input('cell', c)),
+		...provenance.inputs.packs.map((p) => input('pack', p)),
+		`# rule: ${clean(ruleDescription(rule))}`,
+		`# created: ${provenance.createdAt}`,
+		`# generator: ${clean(provenance.generator)}`
+	];
 }
 
 /**
  * RFC 4180 CSV through the product's one CSV writer (src/lib/csv.ts, formula-escaped text cells):
- * a header line with units in the column names, then one record per row; CRLF line breaks,
- * including after the last record. Missing values (baseline rows, no heater cap) are empty cells.
+ * with provenance, "# key: value" lines first (sweep, each input's name and version, the rule,
+ * creation time, generator; readers skip them as comments, e.g. papaparse `comments: '#'`), then a
+ * header line with units in the column names, then one record per row; CRLF line breaks, including
+ * after the last record. Missing values (baseline rows, no heater cap) are empty cells.
  */
-export function calibrationCsv(table: readonly CalibrationRow[]): string {
-	return writeCsv(
-		CALIBRATION_CSV_HEADER,
-		table.map((row) => {
-			const r = toExportRow(row);
-			return CALIBRATION_CSV_HEADER.map((col) => r[col]);
-		})
+export function calibrationCsv(
+	table: readonly CalibrationRow[],
+	provenance?: CalibrationProvenance,
+	rule: CalibrationRule = { kind: 'knee' }
+): string {
+	const head = provenance ? provenanceLines(provenance, rule).map((l) => l + '\r\n').join('') : '';
+	return (
+		head +
+		writeCsv(
+			CALIBRATION_CSV_HEADER,
+			table.map((row) => {
+				const r = toExportRow(row, provenance);
+				return CALIBRATION_CSV_HEADER.map((col) => r[col]);
+			})
+		)
 	);
 }
 
-export const CALIBRATION_FORMAT = 'paretherm-calibration/1';
+/** Version 2 added provenance, the rule and input names and versions per row. */
+export const CALIBRATION_FORMAT = 'paretherm-calibration/2';
 
 export interface CalibrationJsonDocument {
 	format: typeof CALIBRATION_FORMAT;
+	provenance: CalibrationProvenance | null;
+	rule: CalibrationRule & { description: string };
 	units: Record<keyof CalibrationExportRow, string>;
 	rows: CalibrationExportRow[];
 }
@@ -379,15 +509,25 @@ const UNITS: CalibrationJsonDocument['units'] = {
 	energy_pre_arrival_kWh: 'kilowatt-hour, part of energy_kWh spent before arrival (from the pack)',
 	energy_during_charge_kWh: 'kilowatt-hour, part of energy_kWh spent during the charge (from the grid)',
 	baseline_time_min: 'minute, baseline time to target',
-	rule: "how the row was chosen: 'kneedle', 'max-time-saved-per-kWh', 'fastest-within-<X>-kWh' or 'baseline' (no strategy beats the baseline)"
+	rule: "how the row was chosen: 'kneedle', 'max-time-saved-per-kWh', 'fastest-within-<X>-kWh' or 'baseline' (no strategy beats the baseline)",
+	cell_name: 'name of the cell parameter set version that ran',
+	cell_version: 'version number of the cell parameter set that ran',
+	pack_name: 'name of the pack design version that ran',
+	pack_version: 'version number of the pack design that ran'
 };
 
-/** JSON document tagged `format: 'paretherm-calibration/1'`, units listed per field. */
-export function calibrationJson(table: readonly CalibrationRow[]): string {
+/** JSON document tagged `format: 'paretherm-calibration/2'`: provenance, the rule, units listed per field, rows. */
+export function calibrationJson(
+	table: readonly CalibrationRow[],
+	provenance?: CalibrationProvenance,
+	rule: CalibrationRule = { kind: 'knee' }
+): string {
 	const doc: CalibrationJsonDocument = {
 		format: CALIBRATION_FORMAT,
+		provenance: provenance ?? null,
+		rule: { ...rule, description: ruleDescription(rule) },
 		units: UNITS,
-		rows: table.map(toExportRow)
+		rows: table.map((r) => toExportRow(r, provenance))
 	};
 	return JSON.stringify(doc, null, 2);
 }

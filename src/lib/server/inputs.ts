@@ -12,6 +12,7 @@ import { Op } from 'sequelize';
 import type { ZodError, ZodTypeAny } from 'zod';
 import { cellParamsSchema, packDesignSchema, scenarioSchema } from '../engine/schemas';
 import { ParameterSet, type ParameterKind } from './db/models/index';
+import { unknownKeys, unknownKeysMessage } from '../unknown-keys';
 import { sequelize } from './db/index';
 
 export const PARAMETER_FORMAT = 'paretherm-parameters/1';
@@ -48,8 +49,14 @@ export function firstIssue(err: ZodError): { message: string; field: string } {
 	return { message: field ? `${field}: ${issue.message}` : issue.message, field };
 }
 
-/** Validates engine data for a kind; returns the parsed (defaults filled) object or throws InputError. */
+/**
+ * Validates engine data for a kind; returns the parsed (defaults filled) object or throws InputError.
+ * Keys the schema does not know are refused, named, with the likely intended key (a typo would
+ * otherwise be dropped silently and save a version that differs from what was meant).
+ */
 export function validateInput(kind: ParameterKind, data: unknown): Record<string, unknown> {
+	const unknown = unknownKeys(SCHEMA[kind], data);
+	if (unknown.length > 0) throw new InputError(unknownKeysMessage(unknown), unknown[0].path);
 	const parsed = SCHEMA[kind].safeParse(data);
 	if (!parsed.success) {
 		const { message, field } = firstIssue(parsed.error);
@@ -152,23 +159,37 @@ export async function saveVersion(base: ParameterSet, name: string, data: unknow
 	});
 }
 
-/** The newest version of each slug, per kind. */
+export interface InputVersionSummary {
+	id: number;
+	version: number;
+	name: string;
+	createdAt: string;
+}
+
+/**
+ * The newest version of each slug, per kind, with how many versions it has and all of them
+ * (newest first). Grouped by slug, never by name: an edit may rename an input, and the newest
+ * version's name and number are what lists show. Sorted by kind, then by the newest name.
+ */
 export async function latestInputs(programId: number, kind?: ParameterKind) {
 	const rows = await ParameterSet.findAll({
 		where: { program_id: programId, ...(kind ? { kind } : {}) },
-		order: [['kind', 'ASC'], ['name', 'ASC'], ['version', 'DESC']]
+		order: [['kind', 'ASC'], ['slug', 'ASC'], ['version', 'DESC']]
 	});
-	const seen = new Set<string>();
-	const out: (ParameterSet & { versions?: number })[] = [];
-	const counts = new Map<string, number>();
-	for (const r of rows) counts.set(`${r.kind}/${r.slug}`, (counts.get(`${r.kind}/${r.slug}`) ?? 0) + 1);
+	const groups = new Map<string, ParameterSet[]>();
 	for (const r of rows) {
 		const key = `${r.kind}/${r.slug}`;
-		if (seen.has(key)) continue;
-		seen.add(key);
-		out.push(r);
+		const list = groups.get(key) ?? [];
+		list.push(r);
+		groups.set(key, list);
 	}
-	return out.map((r) => ({ row: r, versions: counts.get(`${r.kind}/${r.slug}`) ?? 1 }));
+	return [...groups.values()]
+		.map((list) => ({
+			row: list[0],
+			versions: list.length,
+			all: list.map((r): InputVersionSummary => ({ id: r.id, version: r.version, name: r.name, createdAt: r.created_at.toISOString() }))
+		}))
+		.sort((a, b) => a.row.kind.localeCompare(b.row.kind) || a.row.name.localeCompare(b.row.name) || a.row.slug.localeCompare(b.row.slug));
 }
 
 export async function getInput(programId: number, id: number) {

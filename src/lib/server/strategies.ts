@@ -1,6 +1,6 @@
 /**
  * Strategy review. A thermal engineer promotes a sweep point to a strategy (proposed); a pack
- * architect endorses or declines it; endorsing a strategy supersedes the earlier endorsed one
+ * architect or a program manager endorses or declines it; endorsing a strategy supersedes the earlier endorsed one
  * for the same scenario of the same program; the proposer may withdraw a proposal. Every change
  * and every comment is an event in the strategy's thread.
  */
@@ -17,7 +17,7 @@ export const STATE_LABEL: Record<StrategyState, string> = {
 	withdrawn: 'Withdrawn'
 };
 
-/** Allowed moves and who may make them ('decide' = pack architect, 'edit' = thermal engineer). */
+/** Allowed moves and who may make them ('decide' = pack architect or program manager, 'edit' = thermal engineer). */
 export const TRANSITIONS: { from: StrategyState; to: StrategyState; need: 'decide' | 'edit'; verb: string }[] = [
 	{ from: 'proposed', to: 'endorsed', need: 'decide', verb: 'Endorse' },
 	{ from: 'proposed', to: 'declined', need: 'decide', verb: 'Decline' },
@@ -58,7 +58,7 @@ export function assertMoveAllowed(strategy: Strategy, to: StrategyState, can: { 
 		throw new StrategyError(`A ${STATE_LABEL[strategy.state].toLowerCase()} strategy cannot become ${STATE_LABEL[to].toLowerCase()}.`, 409, 'state');
 	if (!can[move.need])
 		throw new StrategyError(
-			move.need === 'decide' ? 'Only pack architects may endorse, decline or reopen strategies.' : 'Only thermal engineers may propose or withdraw strategies.',
+			move.need === 'decide' ? 'Only pack architects and program managers may endorse, decline or reopen strategies.' : 'Only thermal engineers may propose or withdraw strategies.',
 			403,
 			'state'
 		);

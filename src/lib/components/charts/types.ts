@@ -31,6 +31,8 @@ export interface FrontPoint {
 export interface FrontSeries {
 	label: string;
 	points: FrontPoint[];
+	/** The front starts at the baseline (0 kWh, 0 min): no strategy dominates it. */
+	startsAtBaseline?: boolean;
 }
 
 /** One cell of the lead-time × set-point grid. */
@@ -76,4 +78,20 @@ export interface OcpCurve {
 	x: number[];
 	y: number[];
 	color?: string;
+}
+
+/**
+ * One entry of a chart's legend, drawn as HTML above the chart (full names, wrapping, never over
+ * the plot, no paging). `symbol` is an ECharts symbol name ('circle', 'rect', 'triangle',
+ * 'diamond', 'roundRect', 'pin') or 'cross'; `line` draws a line through the swatch.
+ */
+export interface LegendEntry {
+	name: string;
+	color: string;
+	line?: 'solid' | 'dashed' | 'dotted' | null;
+	symbol?: string | null;
+	/** Outline only (e.g. the baseline's white square, the knee's ring). */
+	hollow?: boolean;
+	/** Clicking hides or shows the series (default true). */
+	toggle?: boolean;
 }

@@ -30,7 +30,7 @@ export function parseId(raw: string | undefined, what: string): number {
 const NEED_WORDS: Record<Capability, string> = {
 	read: 'read this program',
 	edit: 'change inputs or queue sweeps (thermal engineers do)',
-	decide: 'endorse or decline strategies (pack architects do)',
+	decide: 'endorse or decline strategies (pack architects and program managers do)',
 	comment: 'comment'
 };
 

@@ -13,13 +13,13 @@ export const ROLE_LABELS: Record<ProgramRole, string> = {
 };
 
 /** read: see inputs and results · edit: change inputs, queue and cancel sweeps, propose strategies ·
- * decide: endorse or decline strategies · comment: write in strategy threads. */
+ * decide: endorse or decline strategies (pack architects and program managers) · comment: write in strategy threads. */
 export type Capability = 'read' | 'edit' | 'decide' | 'comment';
 
 const CAPABILITIES: Record<ProgramRole, readonly Capability[]> = {
 	engineer: ['read', 'edit', 'comment'],
 	architect: ['read', 'decide', 'comment'],
-	manager: ['read', 'comment'],
+	manager: ['read', 'decide', 'comment'],
 	viewer: ['read']
 };
 

@@ -79,7 +79,7 @@ export function fieldPath(path: (string | number)[]): string {
 	return out;
 }
 
-/** Parse or throw SweepInputError with the first problem (all problems are in `message` lines). */
+/** Parse or throw SweepInputError naming the first problem's field, with every problem in the message. */
 export function parseSweepRequest(body: unknown): SweepRequest {
 	if (body === null || typeof body !== 'object' || Array.isArray(body))
 		throw new SweepInputError('Send the sweep as a JSON object with scenarioId and definition.');
@@ -92,6 +92,9 @@ export function parseSweepRequest(body: unknown): SweepRequest {
 	let message = first.message;
 	if (first.code === z.ZodIssueCode.invalid_type && first.received === 'undefined' && !/Choose/.test(message))
 		message = `${field} is missing.`;
-	if (issues.length > 1) message += ` (and ${issues.length - 1} more problem${issues.length > 2 ? 's' : ''})`;
+	for (const other of issues.slice(1)) {
+		const where = fieldPath(other.path);
+		message += ` · ${where && !other.message.includes(where) ? `${where}: ` : ''}${other.message}`;
+	}
 	throw new SweepInputError(message, field || undefined);
 }

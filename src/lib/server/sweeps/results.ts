@@ -12,6 +12,7 @@ import {
 	calibrationJson,
 	calibrationTable,
 	fastestWithin,
+	type CalibrationProvenance,
 	type CalibrationRule,
 	type EvaluatedPoint,
 	type ScenarioCalibration
@@ -26,6 +27,7 @@ import { sweepBody } from './http-cache';
 import { planFor } from './service';
 import { scenarioInputsFor, strategyInput, type SweepInputs } from './inputs';
 import { SweepInputError } from './request';
+import { GENERATOR } from '../version';
 
 // ---------------------------------------------------------------------------------------------
 // Lookup
@@ -214,8 +216,10 @@ export interface ScenarioFrontView {
 	baseline: PointView | null;
 	baselineTimeToTarget_s: number | null;
 	baselineReachedTarget: boolean;
-	/** Non-dominated points (least energy, most time saved), energy ascending. */
+	/** Strategies on the front of {baseline, strategies} (least energy, most time saved), energy ascending; never slower than the baseline. */
 	front: PointView[];
+	/** True when no strategy dominates the baseline, so the front starts at (0 kWh, 0 min). */
+	baselineOnFront: boolean;
 	/** Recommended by the knee rule (Kneedle, Satopää et al. 2011, or its stated fallback). */
 	knee: PointView | null;
 	kneeMethod: string | null;
@@ -257,6 +261,7 @@ export async function sweepFronts(sweep: Sweep, opts: { fastestWithinEnergy_Wh?:
 				baselineTimeToTarget_s: s.baseline_time_to_target_s,
 				baselineReachedTarget: Boolean(s.baseline_reached_target),
 				front,
+				baselineOnFront: !front.some((p) => p.energy_Wh !== null && p.timeSaved_s !== null && p.energy_Wh <= 0 && (p.energy_Wh < 0 || p.timeSaved_s > 0)),
 				knee: s.knee_point_id !== null ? (points.get(s.knee_point_id) ?? null) : null,
 				kneeMethod: s.knee_method,
 				rule,
@@ -370,7 +375,20 @@ export async function sweepCalibration(sweep: Sweep, rule: CalibrationRule, form
 		})
 	);
 	const table = calibrationTable(calibrations, rule);
-	return format === 'csv' ? calibrationCsv(table) : calibrationJson(table);
+	const provenance = calibrationProvenance(sweep);
+	return format === 'csv' ? calibrationCsv(table, provenance, rule) : calibrationJson(table, provenance, rule);
+}
+
+/** Where a calibration table comes from: the sweep, the exact input versions it ran, now, and who wrote the file. */
+export function calibrationProvenance(sweep: Sweep): CalibrationProvenance {
+	const { inputs } = sweepStatus(sweep);
+	const input = (r: RefView) => ({ id: r.id, parameterSetId: r.parameterSetId, slug: r.slug, name: r.name, version: r.version });
+	return {
+		sweep: { id: sweep.id, name: sweep.name, finishedAt: iso(sweep.finished_at) },
+		inputs: { baseScenario: input(inputs.baseScenario), cells: inputs.cells.map(input), packs: inputs.packs.map(input) },
+		createdAt: new Date().toISOString(),
+		generator: GENERATOR
+	};
 }
 
 /** Cache key of a calibration body (see http-cache.ts). */

@@ -10,8 +10,16 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 	const finished = await Sweep.findAll({ where: { program_id: program.id, status: 'done' }, order: [['id', 'DESC']], limit: 50 });
 	const wanted = Number(url.searchParams.get('sweep'));
 	const sweep = finished.find((s) => s.id === wanted) ?? finished[0] ?? null;
-	const budgetRaw = url.searchParams.get('budget_kWh');
-	const budget_kWh = budgetRaw && Number.isFinite(Number(budgetRaw)) && Number(budgetRaw) >= 0 ? Number(budgetRaw) : null;
+	const budgetRaw = (url.searchParams.get('budget_kWh') ?? '').trim().replace(',', '.');
+	const ruleAsked: 'knee' | 'fastest-within' = url.searchParams.get('rule') === 'fastest-within' || (url.searchParams.get('rule') === null && budgetRaw !== '') ? 'fastest-within' : 'knee';
+	const budgetValid = budgetRaw !== '' && Number.isFinite(Number(budgetRaw)) && Number(budgetRaw) >= 0;
+	const budgetError =
+		ruleAsked === 'fastest-within' && !budgetValid
+			? budgetRaw === ''
+				? 'Enter the energy budget in kWh for “fastest within”; the table below uses the knee rule until then.'
+				: `Energy budget “${budgetRaw.slice(0, 20)}” is not a number of kWh (0 or more); the table below uses the knee rule until it is.`
+			: null;
+	const budget_kWh = ruleAsked === 'fastest-within' && budgetValid ? Number(budgetRaw) : null;
 	let doc: CalibrationJsonDocument | null = null;
 	if (sweep) {
 		const rule = budget_kWh != null ? { kind: 'fastest-within' as const, maxEnergy_Wh: budget_kWh * 1000 } : { kind: 'knee' as const };
@@ -21,7 +29,12 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		sweeps: finished.map((s) => ({ id: s.id, name: s.name })),
 		sweepId: sweep?.id ?? null,
 		budget_kWh,
+		budgetText: budgetRaw,
+		ruleAsked,
+		budgetError,
 		rows: doc?.rows ?? [],
+		rule: doc?.rule ?? null,
+		provenance: doc?.provenance ?? null,
 		units: doc?.units ?? null
 	};
 };

@@ -13,7 +13,7 @@ export const load: PageServerLoad = async ({ locals, params }) => {
 	const cells = await ParameterSet.findAll({
 		where: { program_id: program.id, kind: 'cell' },
 		attributes: ['id', 'name', 'slug', 'version'],
-		order: [['name', 'ASC'], ['version', 'DESC']]
+		order: [['slug', 'ASC'], ['version', 'DESC']]
 	});
 	return {
 		uploads: await listUploads(program.id),

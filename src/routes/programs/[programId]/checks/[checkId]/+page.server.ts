@@ -5,6 +5,7 @@ import { ParameterSet, Upload, User } from '$lib/server/db/models/index';
 import { StrategyError } from '$lib/server/strategies';
 import { addCheckComment, chartIndices, checkSeries, checkSummary, checkThread, getCheck, MAX_COMMENT_CHARS, strategiesCiting } from '$lib/server/model-checks';
 import { STATE_LABEL } from '$lib/server/strategies';
+import { doneMessage, redirectDone } from '$lib/server/after-post';
 
 async function checkOf(programId: number, raw: string) {
 	const row = await getCheck(programId, parseId(raw, 'model check'));
@@ -12,7 +13,7 @@ async function checkOf(programId: number, raw: string) {
 	return row;
 }
 
-export const load: PageServerLoad = async ({ locals, params }) => {
+export const load: PageServerLoad = async ({ locals, params, url }) => {
 	const { program } = await requireProgramRole(locals, params.programId, 'read');
 	const row = await checkOf(program.id, params.checkId);
 	const author = await User.findByPk(row.created_by);
@@ -41,21 +42,22 @@ export const load: PageServerLoad = async ({ locals, params }) => {
 		thread: await checkThread(row.id),
 		citedBy: await strategiesCiting(program.id, row.id),
 		stateLabel: STATE_LABEL,
-		maxComment: MAX_COMMENT_CHARS
+		maxComment: MAX_COMMENT_CHARS,
+		done: doneMessage(url, { commented: 'Comment posted.' })
 	};
 };
 
 export const actions: Actions = {
-	comment: async ({ locals, params, request }) => {
+	comment: async ({ locals, params, request, url }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'comment');
 		const form = await request.formData();
 		const row = await checkOf(program.id, params.checkId);
 		try {
 			await addCheckComment(row, user.id, form.get('body'));
-			return { done: 'Comment posted.' };
 		} catch (e) {
 			if (e instanceof StrategyError) return fail(e.status, { field: 'comment', message: e.message, body: String(form.get('body') ?? '').slice(0, MAX_COMMENT_CHARS) });
 			throw e;
 		}
+		redirectDone(url, 'commented');
 	}
 };

@@ -3,6 +3,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { roleCan } from '$lib/server/auth/roles';
 import { Strategy, User, STRATEGY_STATES, type StrategyState } from '$lib/server/db/models/index';
+import { doneMessage, redirectDone } from '$lib/server/after-post';
 import { addComment, assertMoveAllowed, changeState, cleanText, MAX_COMMENT_CHARS, movesFor, STATE_LABEL, StrategyError, thread } from '$lib/server/strategies';
 
 async function strategyOf(programId: number, raw: string) {
@@ -11,7 +12,13 @@ async function strategyOf(programId: number, raw: string) {
 	return s;
 }
 
-export const load: PageServerLoad = async ({ locals, params }) => {
+/** Messages after a successful post (post/redirect/get), by `?done=` code. */
+const DONE: Record<string, string> = {
+	commented: 'Comment posted.',
+	...Object.fromEntries(Object.entries(STATE_LABEL).map(([state, label]) => [`moved-${state}`, `Strategy is now ${label.toLowerCase()}.`]))
+};
+
+export const load: PageServerLoad = async ({ locals, params, url }) => {
 	const { program, user } = await requireProgramRole(locals, params.programId, 'read');
 	const s = await strategyOf(program.id, params.strategyId);
 	const proposer = await User.findByPk(s.created_by);
@@ -30,7 +37,8 @@ export const load: PageServerLoad = async ({ locals, params }) => {
 		stateLabel: STATE_LABEL,
 		moves: movesFor(s, user.id).map((t) => ({ to: t.to, verb: t.verb, need: t.need })),
 		thread: await thread(s.id),
-		maxComment: MAX_COMMENT_CHARS
+		maxComment: MAX_COMMENT_CHARS,
+		done: doneMessage(url, DONE)
 	};
 };
 
@@ -41,20 +49,20 @@ function capabilities(role: string) {
 }
 
 export const actions: Actions = {
-	comment: async ({ locals, params, request }) => {
+	comment: async ({ locals, params, request, url }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'comment');
 		const s = await strategyOf(program.id, params.strategyId);
 		const form = await request.formData();
 		try {
 			const body = cleanText(form.get('body'), 'comment', MAX_COMMENT_CHARS);
 			await addComment(s, user.id, body);
-			return { done: 'Comment posted.' };
 		} catch (e) {
 			if (e instanceof StrategyError) return fail(e.status, { field: e.field, message: e.message, body: String(form.get('body') ?? '').slice(0, MAX_COMMENT_CHARS) });
 			throw e;
 		}
+		redirectDone(url, 'commented');
 	},
-	move: async ({ locals, params, request }) => {
+	move: async ({ locals, params, request, url }) => {
 		const { program, user, role } = await requireProgramRole(locals, params.programId, 'read');
 		const s = await strategyOf(program.id, params.strategyId);
 		const form = await request.formData();
@@ -64,10 +72,10 @@ export const actions: Actions = {
 			assertMoveAllowed(s, to as StrategyState, capabilities(role), user.id);
 			const note = cleanText(form.get('note'), 'note', MAX_COMMENT_CHARS, false);
 			await changeState(s, to as StrategyState, user.id, note, capabilities(role));
-			return { done: `Strategy is now ${STATE_LABEL[to as StrategyState].toLowerCase()}.` };
 		} catch (e) {
 			if (e instanceof StrategyError) return fail(e.status, { field: e.field, message: e.message });
 			throw e;
 		}
+		redirectDone(url, `moved-${to}`);
 	}
 };

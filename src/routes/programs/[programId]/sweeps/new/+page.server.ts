@@ -4,7 +4,8 @@ import { requireProgramRole } from '$lib/server/auth/guard';
 import { latestInputs } from '$lib/server/inputs';
 import { createSweep, SweepInputError } from '$lib/server/sweeps/service';
 import { Sweep } from '$lib/server/db/models/index';
-import { BUILDER_FIELDS, builderToRequest, fieldForPath, type BuilderValues } from './builder';
+import { BUILDER_FIELDS, checkBuilder, fieldForPath, versionsFromForm, type BuilderValues } from './builder';
+import { MAX_GRID_POINTS } from '$lib/sweep-builder';
 
 /** Simulations per second from the most recent finished sweeps; a stated default before any ran. */
 async function measuredThroughput(programId: number): Promise<{ simsPerSecond: number; measured: boolean }> {
@@ -23,8 +24,12 @@ async function measuredThroughput(programId: number): Promise<{ simsPerSecond: n
 export const load: PageServerLoad = async ({ locals, params }) => {
 	const { program } = await requireProgramRole(locals, params.programId, 'edit');
 	const rows = await latestInputs(program.id);
-	const pick = (kind: string) => rows.filter((r) => r.row.kind === kind).map(({ row }) => ({ slug: row.slug, name: row.name, version: row.version }));
-	return { cells: pick('cell'), packs: pick('pack'), scenarios: pick('scenario'), throughput: await measuredThroughput(program.id), fields: BUILDER_FIELDS };
+	// Newest version first; the form offers every version and picks the newest by default.
+	const pick = (kind: string) =>
+		rows
+			.filter((r) => r.row.kind === kind)
+			.map(({ row, all }) => ({ slug: row.slug, name: row.name, version: row.version, versions: all.map((v) => ({ version: v.version, name: v.name })) }));
+	return { cells: pick('cell'), packs: pick('pack'), scenarios: pick('scenario'), throughput: await measuredThroughput(program.id), fields: BUILDER_FIELDS, maxGridPoints: MAX_GRID_POINTS };
 };
 
 export const actions: Actions = {
@@ -34,8 +39,11 @@ export const actions: Actions = {
 		const values: BuilderValues = {
 			name: String(form.get('name') ?? ''),
 			scenarioId: String(form.get('scenarioId') ?? ''),
+			scenarioVersion: String(form.get('scenarioVersion') ?? ''),
 			cells: form.getAll('cells').map(String),
 			packs: form.getAll('packs').map(String),
+			cellVersions: versionsFromForm(form, 'cellVersion:'),
+			packVersions: versionsFromForm(form, 'packVersion:'),
 			ambients: String(form.get('ambients') ?? ''),
 			soh: String(form.get('soh') ?? ''),
 			socs: String(form.get('socs') ?? ''),
@@ -44,12 +52,17 @@ export const actions: Actions = {
 			heaterCaps: String(form.get('heaterCaps') ?? ''),
 			budget: String(form.get('budget') ?? '')
 		};
+		// Every problem at once (the page checks the same while the user types).
+		const { body, problems } = checkBuilder(values);
+		if (!body) return fail(400, { values, field: problems[0].field, message: problems[0].message, problems });
 		let sweepId: number;
 		try {
-			const body = builderToRequest(values);
 			sweepId = (await createSweep(program.id, user.id, body)).id;
 		} catch (e) {
-			if (e instanceof SweepInputError) return fail(e.status, { values, field: fieldForPath(e.field), message: e.message });
+			if (e instanceof SweepInputError) {
+				const field = fieldForPath(e.field);
+				return fail(e.status, { values, field, message: e.message, problems: [{ field: field ?? 'grid', message: e.message }] });
+			}
 			throw e;
 		}
 		redirect(303, `/programs/${program.id}/sweeps/${sweepId}`);

@@ -382,4 +382,40 @@ describe('a new user on the demo program', () => {
 			await page.setViewportSize({ width: 1360, height: 900 });
 		}
 	});
+
+	it('should send a digest whose table fits a 600 px mail card, label picks by their rule, and write dates one way', async () => {
+		await session.signInAs(DEMO.admin);
+		await page.goto(`${app.url}/admin/outbox`);
+		const digestPath = (await page.getByRole('link', { name: /Sweep “.+” finished/ }).first().getAttribute('href'))!;
+		const messagePaths = await page.locator('a[href^="/admin/outbox/"]').evaluateAll((as) => as.map((a) => a.getAttribute('href')!));
+		// Dates on pages: ISO 8601 date, 24-hour time and the zone, the same everywhere.
+		const iso = /^\d{4}-\d\d-\d\d \d\d:\d\d UTC$/;
+		const outboxDates = await page.getByTestId('outbox-table').getByTestId('when').allTextContents();
+		expect(outboxDates.length).toBeGreaterThan(0);
+		for (const d of outboxDates) expect(d.trim()).toMatch(iso);
+		await go('/sweeps');
+		const sweepDates = await page.getByTestId('when').allTextContents();
+		expect(sweepDates.length).toBeGreaterThan(0);
+		for (const d of sweepDates) expect(d.trim()).toMatch(iso);
+
+		// Every message as a mail client shows it, 600 px wide: nothing wider than the window.
+		await page.setViewportSize({ width: 600, height: 900 });
+		try {
+			const wide: string[] = [];
+			for (const m of messagePaths) {
+				await page.goto(`${app.url}${m}/html`);
+				const width = await page.evaluate(() => document.documentElement.scrollWidth);
+				if (width > 600) wide.push(`${m}: ${width} px`);
+			}
+			expect(wide).toEqual([]);
+			await page.goto(`${app.url}${digestPath}/html`);
+			const body = (await page.locator('body').textContent())!;
+			expect(body).toMatch(/Picked by\s*(knee|per kWh|baseline)/);
+			expect(body).toMatch(/Finished \d{4}-\d\d-\d\d \d\d:\d\d UTC\./);
+		} finally {
+			await page.setViewportSize({ width: 1360, height: 900 });
+		}
+		await go('');
+		await session.signOut();
+	});
 });

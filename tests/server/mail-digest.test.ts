@@ -121,11 +121,19 @@ describe('sweep digest', () => {
 				min(knee.time_saved_s!),
 				kWh(knee.energy_Wh!),
 				min(knee.time_to_target_s!),
-				min(summary.deratingDuration_s)
+				min(summary.deratingDuration_s),
+				// The rule that picked it, in the words the legend under the table explains.
+				sc.knee_method === 'kneedle' ? 'knee' : 'per kWh'
 			]);
 			// The same figures in the HTML table cells.
 			for (const v of [min(knee.lead_time_s!), degC(knee.coolant_setpoint_K!), min(knee.time_saved_s!), kWh(knee.energy_Wh!)]) expect(msg.html).toContain(`>${v}</td>`);
 		}
+		// Fits a 600 px mail card: every table is stacked to two columns (label | value), none side-scrolls.
+		expect(msg.html).toContain('max-width:600px');
+		for (const row of msg.html.match(/<tr>[\s\S]*?<\/tr>/g) ?? []) expect((row.match(/<td/g) ?? []).length).toBeLessThanOrEqual(2);
+		expect(msg.html).toMatch(/>Picked by<\/td><td[^>]*>(knee|per kWh|baseline)<\/td>/);
+		// One date format on pages and in mail: ISO 8601 date, 24-hour time, the zone.
+		expect(msg.text).toMatch(/Finished \d{4}-\d\d-\d\d \d\d:\d\d UTC\./);
 		const noneBeat = scenarios.filter((s) => s.no_strategy_beats_baseline);
 		expect(msg.text).toContain(noneBeat.length ? 'No strategy beat the baseline in:' : 'In every scenario at least one strategy beat the baseline.');
 

@@ -44,7 +44,10 @@ export const S = {
 	tdNum: 'border-bottom:1px solid #e3e8ec;padding:4px 8px;text-align:right;white-space:nowrap;font-variant-numeric:tabular-nums',
 	button: 'display:inline-block;background:#1f4e79;color:#ffffff;text-decoration:none;padding:8px 14px;border-radius:6px',
 	note: 'background:#fff7e6;border-left:3px solid #d99a00;padding:6px 10px;margin:8px 0',
-	muted: 'color:#5b6773;font-size:12px'
+	muted: 'color:#5b6773;font-size:12px',
+	/** Label | value pairs that wrap, so they fit a narrow mail window. */
+	pairLabel: 'border-bottom:1px solid #e3e8ec;padding:3px 8px;color:#5b6773;width:40%;vertical-align:top',
+	pairValue: 'border-bottom:1px solid #e3e8ec;padding:3px 8px;vertical-align:top'
 };
 
 /** Wrap an HTML body and a text body with the header, footer and caution line. */
@@ -53,7 +56,7 @@ export function frame(opts: { subject: string; htmlBody: string; textBody: strin
 	const html = `<!doctype html>
 <html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width"><title>${esc(opts.subject)}</title></head>
 <body style="margin:0;padding:16px;background:#f4f6f8;font-family:Manrope,Segoe UI,Helvetica,Arial,sans-serif;color:#1d2630;font-size:14px">
-<div style="max-width:720px;margin:0 auto;background:#ffffff;border:1px solid #dde3e8;border-radius:8px;padding:18px 20px">
+<div style="max-width:600px;margin:0 auto;background:#ffffff;border:1px solid #dde3e8;border-radius:8px;padding:18px 16px;overflow-wrap:anywhere">
 <div style="font-weight:700;color:#1f4e79;margin-bottom:10px">Paretherm</div>
 ${opts.htmlBody}
 ${caution ? `<p style="${S.p};${S.muted};margin-top:16px">${esc(CAUTION)}</p>` : ''}
@@ -68,6 +71,28 @@ export function textTable(head: string[], rows: string[][]): string {
 	const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => (r[i] ?? '').length)));
 	const line = (cells: string[]) => cells.map((c, i) => (i === 0 ? c.padEnd(widths[i]) : c.padStart(widths[i]))).join('  ').trimEnd();
 	return [line(head), widths.map((w) => '-'.repeat(w)).join('  '), ...rows.map(line)].join('\n');
+}
+
+/**
+ * One small two-column table per row of a wide table (the first cell as its title, then one
+ * "column name | value" line per cell). Fits any width a mail client gives it — no side
+ * scrolling and no media queries, which many clients drop.
+ */
+export function stackedTables(head: string[], rows: string[][]): string {
+	const label = 'border-bottom:1px solid #e3e8ec;padding:3px 8px;color:#5b6773;width:45%;vertical-align:top';
+	const value = 'border-bottom:1px solid #e3e8ec;padding:3px 8px;text-align:right;font-variant-numeric:tabular-nums;vertical-align:top';
+	return rows
+		.map(
+			(r) =>
+				`<table role="presentation" width="100%" style="width:100%;border-collapse:collapse;font-size:13px;margin:8px 0 12px;border:1px solid #e3e8ec">` +
+				`<tr><td colspan="2" style="padding:5px 8px;background:#f4f6f8;font-weight:600">${esc(r[0])}</td></tr>` +
+				r
+					.slice(1)
+					.map((c, i) => `<tr><td style="${label}">${esc(head[i + 1])}</td><td style="${value}">${esc(c)}</td></tr>`)
+					.join('') +
+				`</table>`
+		)
+		.join('\n');
 }
 
 export function htmlTable(head: string[], rows: string[][], numericFrom = 1): string {

@@ -91,7 +91,7 @@ function renderImmediate(e: StrategyEvent, s: Strategy, programName: string, act
 <p style="${S.p}">Hello ${esc(recipient)},</p>
 <p style="${S.p}">${esc(line)}.</p>
 ${body ? `<blockquote style="margin:0 0 12px;padding:6px 12px;border-left:3px solid #c9d1d9;white-space:pre-wrap">${esc(body)}</blockquote>` : ''}
-<table role="presentation" style="${S.table}">${figures.map((f) => `<tr><td style="${S.td};color:#5b6773">${esc(f.label)}</td><td style="${S.td}">${esc(f.value)}</td></tr>`).join('')}</table>
+<table role="presentation" width="100%" style="${S.table};width:100%">${figures.map((f) => `<tr><td style="${S.pairLabel}">${esc(f.label)}</td><td style="${S.pairValue}">${esc(f.value)}</td></tr>`).join('')}</table>
 <p style="${S.p}"><a style="${S.button}" href="${esc(link)}">Open the strategy</a></p>`;
 	return frame({
 		subject,

@@ -14,7 +14,19 @@ import type { SweepDefinition } from '../../engine/sweep-grid';
 import type { SweepInputs } from '../sweeps/inputs';
 import { mailConfig } from './config';
 import { enqueue, log, mailWrite, type NewMessage } from './outbox';
-import { S, esc, fmt, frame, htmlTable, textTable, type Rendered } from './render';
+import { S, esc, fmt, frame, stackedTables, textTable, type Rendered } from './render';
+import { dateTime } from '../../dates';
+
+const RULE_WORDS: Record<string, string> = {
+	kneedle: 'the Kneedle knee (Satopää et al., 2011)',
+	'max-time-saved-per-kWh': 'the most time saved per kWh'
+};
+
+/** Short words for the rule that picked a scenario's recommendation. */
+function pickedBy(s: DigestScenario): string {
+	if (!s.recommended) return 'baseline';
+	return s.method === 'kneedle' ? 'knee' : s.method === 'max-time-saved-per-kWh' ? 'per kWh' : (s.method ?? '–');
+}
 
 export interface DigestScenario {
 	index: number;
@@ -34,6 +46,8 @@ export interface DigestScenario {
 		violations: string[];
 	} | null;
 	noStrategyBeatsBaseline: boolean;
+	/** How the recommendation was picked: 'kneedle', 'max-time-saved-per-kWh' (fallback), or null (none). */
+	method: string | null;
 	frontSize: number;
 	note: string | null;
 }
@@ -46,6 +60,7 @@ export interface SweepDigest {
 	status: 'done' | 'failed';
 	failureReason: string | null;
 	link: string;
+	finishedAt: string | null;
 	baseScenario: string;
 	cells: string[];
 	packs: string[];
@@ -117,6 +132,7 @@ export async function buildSweepDigest(sweepId: number): Promise<SweepDigest | n
 						}
 					: null,
 			noStrategyBeatsBaseline: Boolean(s.no_strategy_beats_baseline),
+			method: s.knee_method,
 			frontSize: (JSON.parse(s.front_point_ids) as number[]).length,
 			note: s.note
 		};
@@ -148,6 +164,7 @@ export async function buildSweepDigest(sweepId: number): Promise<SweepDigest | n
 		status: sweep.status,
 		failureReason: sweep.failure_reason,
 		link: `${mailConfig().origin}/programs/${sweep.program_id}/sweeps/${sweepId}`,
+		finishedAt: sweep.finished_at ? new Date(sweep.finished_at).toISOString() : null,
 		baseScenario: ref(inputs.baseScenario),
 		cells: Object.values(inputs.cells).map(ref),
 		packs: Object.values(inputs.packs).map(ref),
@@ -187,6 +204,7 @@ export function renderSweepDigest(d: SweepDigest, recipientName: string): Render
 			? `It took ${fmt.duration(d.elapsed_ms)} from submission${d.compute_ms !== null && d.compute_ms !== d.elapsed_ms ? ` (${fmt.duration(d.compute_ms)} computing)` : ''}.`
 			: '';
 	const hello = `Hello ${recipientName},`;
+	const finished = d.finishedAt ? `Finished ${dateTime(d.finishedAt)}. ` : '';
 	const footerText = `You receive sweep digests for ${d.programName}. Change this under Settings: ${mailConfig().origin}/settings`;
 	const footer = { text: footerText, html: `You receive sweep digests for ${esc(d.programName)}. <a href="${esc(mailConfig().origin)}/settings">Change this under Settings</a>.` };
 
@@ -220,7 +238,7 @@ ${took ? `<p style="${S.p}">${esc(took)}</p>` : ''}
 		? `[${d.programName}] Sweep “${d.sweepName}” finished: up to ${fmt.min(d.largest.timeSaved_s)} min saved across ${d.scenarioCount} scenario${d.scenarioCount === 1 ? '' : 's'}`
 		: `[${d.programName}] Sweep “${d.sweepName}” finished: no strategy beat the baseline`;
 
-	const head = ['Scenario', 'Baseline min', 'Lead time min', 'Set-point °C', 'Time saved min', 'Energy kWh', 'Charge min', 'Derated min'];
+	const head = ['Scenario', 'Baseline min', 'Lead time min', 'Set-point °C', 'Time saved min', 'Energy kWh', 'Charge min', 'Derated min', 'Picked by'];
 	const rows = d.scenarios.map((s) =>
 		s.recommended
 			? [
@@ -231,9 +249,10 @@ ${took ? `<p style="${S.p}">${esc(took)}</p>` : ''}
 					fmt.min(s.recommended.timeSaved_s),
 					fmt.kWh(s.recommended.energy_Wh),
 					fmt.min(s.recommended.timeToTarget_s),
-					fmt.min(s.recommended.deratingDuration_s)
+					fmt.min(s.recommended.deratingDuration_s),
+					pickedBy(s)
 				]
-			: [s.label, fmt.min(s.baselineTime_s), 'keep default', '–', '–', '–', '–', '–']
+			: [s.label, fmt.min(s.baselineTime_s), 'keep default', '–', '–', '–', '–', '–', pickedBy(s)]
 	);
 	const largest = d.largest
 		? `Largest time saved: ${fmt.min(d.largest.timeSaved_s)} min (${d.largest.scenarioLabel}; lead time ${fmt.min(d.largest.leadTime_s)} min, set-point ${fmt.degC(d.largest.setpoint_K)} °C, ${fmt.kWh(d.largest.energy_Wh)} kWh).`
@@ -255,13 +274,14 @@ ${took ? `<p style="${S.p}">${esc(took)}</p>` : ''}
 	const text = [
 		hello,
 		'',
-		`The sweep “${d.sweepName}” finished. ${took}`,
+		`The sweep “${d.sweepName}” finished. ${finished}${took}`,
 		'',
 		'What was swept:',
 		...what.map((w) => `  ${w}`),
 		'',
 		'Recommended strategy per scenario (the knee of its Pareto front; energy is what the strategy adds over the baseline):',
 		textTable(head, rows),
+		`Picked by: "knee" = ${RULE_WORDS.kneedle}; "per kWh" = ${RULE_WORDS['max-time-saved-per-kWh']}; "baseline" = no strategy beats the baseline.`,
 		'',
 		largest,
 		noneLine,
@@ -275,11 +295,11 @@ ${took ? `<p style="${S.p}">${esc(took)}</p>` : ''}
 
 	const html = `<h1 style="${S.h1}">Sweep “${esc(d.sweepName)}” finished</h1>
 <p style="${S.p}">${esc(hello)}</p>
-<p style="${S.p}">${esc(took)}</p>
+<p style="${S.p}">${esc(finished)}${esc(took)}</p>
 <p style="${S.p}"><strong>${esc(largest)}</strong></p>
 <h2 style="${S.h2}">Recommended strategy per scenario</h2>
-<p style="${S.p};${S.muted}">The knee of each scenario's Pareto front; energy is what the strategy adds over the baseline.</p>
-${htmlTable(head, rows)}
+<p style="${S.p};${S.muted}">The knee of each scenario's Pareto front (${esc(RULE_WORDS.kneedle)}; where a front is too short or straight for a knee, ${esc(RULE_WORDS['max-time-saved-per-kWh'])}); energy is what the strategy adds over the baseline.</p>
+${stackedTables(head, rows)}
 <p style="${beaten.length ? S.note : S.p}">${esc(noneLine)}</p>
 <h2 style="${S.h2}">Limits and derating</h2>
 <ul>${limitLines.map((l) => `<li>${esc(l)}</li>`).join('')}</ul>

@@ -233,7 +233,7 @@ export function evaluateYear(input: EvaluateInput): YearResult {
 	const bins = amb.map(binOf);
 	const lo = bins.length ? Math.min(...bins) : 0;
 	const hi = bins.length ? Math.max(...bins) : -1;
-	const ambientBins = [];
+	const ambientBins: YearResult['ambientBins'] = [];
 	for (let b = lo; b <= hi; b++) ambientBins.push({ from_C: b * AMBIENT_BIN_K, to_C: (b + 1) * AMBIENT_BIN_K, events: 0 });
 	bins.forEach((b) => ambientBins[b - lo].events++);
 	const monthlyEvents = new Array(12).fill(0);

@@ -4,6 +4,7 @@ import m002 from './002-sweeps';
 import m003 from './003-strategies';
 import m004 from './004-mail';
 import m005 from './005-uploads';
+import m030 from './030-year-of-use';
 
 /** Applied in this order; append new migrations, never edit or remove a released one. */
-export const migrations: Migration[] = [m001, m002, m003, m004, m005];
+export const migrations: Migration[] = [m001, m002, m003, m004, m005, m030];

@@ -43,14 +43,14 @@ function gaussian(seed: number): () => number {
 	return () => Math.sqrt(-2 * Math.log(1 - uniform())) * Math.cos(2 * Math.PI * uniform());
 }
 
-/** A bench log of the demo NMC cell made by the engine: 2 s samples, 1C and 2C charges at 5 → 15 °C, voltage noise σ. */
+/** A bench log of the demo NMC cell made by the engine: 2 s samples, 1C and 1.2C charges at 5 → 15 °C, voltage noise σ. */
 function engineLog(sigma_V: number) {
 	const capacity = cellWindow(demoNmcPouch, 1).capacity_Ah;
 	const t_s: number[] = [];
 	const current_A: number[] = [];
 	for (let t = 0; t <= 3600; t += 2) {
 		t_s.push(t);
-		current_A.push((t < 60 ? 0 : t < 1260 ? 1 : t < 1560 ? 0 : t < 2160 ? -0.5 : t < 2760 ? 2 : 0) * capacity);
+		current_A.push((t < 60 ? 0 : t < 1260 ? 1 : t < 1560 ? 0 : t < 2160 ? -0.5 : t < 2760 ? 1.2 : 0) * capacity);
 	}
 	const temp_C = t_s.map((t) => Number((5 + (10 * t) / 3600).toFixed(3)));
 	const clean = replayCurrent(demoNmcPouch, 1, { t_s, current_A, temp_K: temp_C.map((c) => c + 273.15) }, 0.2);

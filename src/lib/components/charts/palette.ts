@@ -52,6 +52,7 @@ export type LimitKey =
 	| 'max-voltage'
 	| 'max-temperature'
 	| 'anode-potential'
+	| 'electrolyte-depletion'
 	| 'target';
 
 export const LIMIT_KEYS: readonly LimitKey[] = [
@@ -60,6 +61,7 @@ export const LIMIT_KEYS: readonly LimitKey[] = [
 	'max-voltage',
 	'max-temperature',
 	'anode-potential',
+	'electrolyte-depletion',
 	'target'
 ];
 
@@ -74,6 +76,7 @@ export const LIMIT_COLOURS: Record<LimitKey, string> = {
 	'max-voltage': '#7fb04f',
 	'max-temperature': '#ef9a5b',
 	'anode-potential': '#d0679c',
+	'electrolyte-depletion': '#3f8fa6',
 	target: '#8e9aab'
 };
 
@@ -83,6 +86,7 @@ export const LIMIT_LABELS: Record<LimitKey, string> = {
 	'max-voltage': 'Cell voltage limit',
 	'max-temperature': 'Cell temperature limit',
 	'anode-potential': 'Plating margin (anode potential)',
+	'electrolyte-depletion': 'Electrolyte depletion',
 	target: 'Target reached'
 };
 

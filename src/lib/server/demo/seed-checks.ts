@@ -12,7 +12,7 @@ import { replayCurrent } from '../../engine/replay';
 import { demoNmcPouch } from '../../engine/demo';
 import { cellWindow } from '../../engine/cell-window';
 
-export const DEMO_LOG_NAME = 'Demo bench log: cold 1C and 2C charges (invented)';
+export const DEMO_LOG_NAME = 'Demo bench log: cold 1C and 1.2C charges (invented)';
 export const DEMO_DRIVE_NAME = 'Demo depot loop speed trace (invented)';
 
 /** Seeded normal noise (mulberry32 + Box–Muller) so the demo is the same on every machine. */
@@ -34,10 +34,10 @@ function benchLogCsv(): string {
 	const capacity = cellWindow(demoNmcPouch, 1).capacity_Ah;
 	const t_s: number[] = [];
 	const current_A: number[] = [];
-	// Soaked at −5 °C: rest, 1C charge, rest, 0.5C discharge, 2C charge on a warmer chamber, rest (70 min).
+	// Soaked at −5 °C: rest, 1C charge, rest, 0.5C discharge, 1.2C charge on a warmer chamber, rest (70 min).
 	for (let t = 0; t <= 4200; t += 5) {
 		t_s.push(t);
-		current_A.push((t < 120 ? 0 : t < 1320 ? 1 : t < 1620 ? 0 : t < 2220 ? -0.5 : t < 3120 ? 2 : 0) * capacity);
+		current_A.push((t < 120 ? 0 : t < 1320 ? 1 : t < 1620 ? 0 : t < 2220 ? -0.5 : t < 3000 ? 1.2 : 0) * capacity);
 	}
 	const chamber_K = t_s.map((t) => 273.15 + (t < 2220 ? -5 : 15));
 	const truth = replayCurrent(sample, 1, { t_s, current_A, ambient_K: chamber_K }, 0.1, { thermal: 'simulated', surfaceConductance_W_per_K: 1.5, initialTemp_K: 268.15 });

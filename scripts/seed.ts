@@ -17,7 +17,7 @@ if (process.env.PARETHERM_SEED_SWEEP !== '0') {
 	const sweepId = await seedDemoSweep(programId, userIds.engineer);
 	console.log(`Demo sweep ${sweepId} finished (${((performance.now() - t0) / 1000).toFixed(1)} s).`);
 }
-// The year-of-use grid (75 simulations) and one evaluation of it; tests ask for it on its own.
+// The year-of-use grid (30 simulations) and one evaluation of it; tests ask for it on its own.
 if (process.env.PARETHERM_SEED_SWEEP !== '0' || process.env.PARETHERM_SEED_YEAR_SWEEP === '1') {
 	const t0 = performance.now();
 	const { sweepId, evaluationId } = await seedDemoYearSweep(programId, userIds.engineer);

@@ -50,7 +50,7 @@ export const DEMO_PATTERN: { name: string; data: ChargingPatternInput } = {
 	}
 };
 
-export const DEMO_YEAR_SWEEP_NAME = 'Year-of-use grid: ambient −20…25 °C, arrival 15…40 % (demo)';
+export const DEMO_YEAR_SWEEP_NAME = 'Year-of-use grid: ambient −20…25 °C, arrival 15 and 40 % (demo)';
 
 export async function seedDemoYearInputs(programId: number, userId: string): Promise<void> {
 	for (const c of DEMO_CLIMATES) {
@@ -65,8 +65,8 @@ export async function seedDemoYearInputs(programId: number, userId: string): Pro
 }
 
 /**
- * A sweep over the demo climates' range for one cell: 5 ambients × 3 arrival SOCs × 1 state of
- * health × (2 lead times × 2 set-points + baseline) = 75 simulations, and one evaluation of it.
+ * A sweep over the demo climates' range for one cell: 5 ambients × 2 arrival SOCs × 1 state of
+ * health × (1 lead time × 2 set-points + baseline) = 30 simulations, and one evaluation of it.
  */
 export async function seedDemoYearSweep(programId: number, userId: string): Promise<{ sweepId: number; evaluationId: number }> {
 	let sweep = await Sweep.findOne({ where: { program_id: programId, name: DEMO_YEAR_SWEEP_NAME }, order: [['id', 'ASC']] });
@@ -79,8 +79,8 @@ export async function seedDemoYearSweep(programId: number, userId: string): Prom
 				packIds: [demoPack.id],
 				ambients_K: [-20, -10, 0, 10, 25].map(celsiusToKelvin),
 				statesOfHealth: [1],
-				arrivalSocs: [0.15, 0.25, 0.4],
-				leadTimes_s: [900, 1800],
+				arrivalSocs: [0.15, 0.4],
+				leadTimes_s: [1800],
 				setpoints_K: [20, 30].map(celsiusToKelvin)
 			}
 		});

@@ -19,10 +19,14 @@ let sweepId = 0;
 
 const yearPath = () => `/programs/${programId}/year`;
 
+/** Posts a form; a chosen file travels as text (the page reads climate CSV and pattern JSON into text fields). */
 function multipart(c: Client, action: string, fields: Record<string, string>, file?: { name: string; text: string }) {
 	const body = new FormData();
 	for (const [k, v] of Object.entries(fields)) body.set(k, v);
-	if (file) body.set('file', new Blob([file.text]), file.name);
+	if (file && action === 'uploadClimate') {
+		body.set('csv', file.text);
+		body.set('fileName', file.name);
+	} else if (file) body.set('json', file.text);
 	return c.request(`${yearPath()}?/${action}`, { method: 'POST', headers: { accept: 'text/html' }, body });
 }
 

@@ -23,7 +23,7 @@ export const load: PageServerLoad = async ({ locals, params }) => {
 
 function echo(form: FormData): Record<string, string> {
 	const out: Record<string, string> = {};
-	for (const [k, v] of form.entries()) if (typeof v === 'string' && k !== 'file') out[k] = v.slice(0, 2000);
+	for (const [k, v] of form.entries()) if (typeof v === 'string' && k !== 'csv') out[k] = v.slice(0, 4000);
 	return out;
 }
 
@@ -51,10 +51,8 @@ function optionalNumber(raw: string | null, field: string): number | null {
 }
 
 /** Pattern from the form's fields (percentages and lists), or from pasted / uploaded JSON. */
-async function patternFromForm(form: FormData): Promise<{ name: unknown; data: unknown }> {
-	const file = form.get('file');
-	let json = str(form, 'json')?.trim() ?? '';
-	if (file instanceof File && file.size > 0) json = await file.text();
+function patternFromForm(form: FormData): { name: unknown; data: unknown } {
+	const json = str(form, 'json')?.trim() ?? '';
 	if (json) {
 		try {
 			const doc = readPatternDocument(parseJsonText(json));
@@ -98,19 +96,23 @@ async function patternFromForm(form: FormData): Promise<{ name: unknown; data: u
 }
 
 export const actions: Actions = {
-	/** An hourly ambient year (CSV); a refused file stores nothing. */
+	/**
+	 * An hourly ambient year. The CSV text arrives as a form field (the page reads the chosen file
+	 * into it; it can also be pasted), so the form carries no file part. A refused file stores nothing.
+	 */
 	uploadClimate: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
 		const form = await request.formData();
-		const file = form.get('file');
-		if (!(file instanceof File) || file.size === 0)
-			return fail(400, { action: 'uploadClimate', field: 'file', message: 'Choose the CSV file of the hourly ambient year.', issues: [], values: echo(form) });
+		const csv = str(form, 'csv') ?? '';
+		if (!csv.trim())
+			return fail(400, { action: 'uploadClimate', field: 'csv', message: 'Choose the CSV file of the hourly ambient year (or paste its text).', issues: [], values: echo(form) });
 		try {
-			checkUploadSize(file.size);
+			const bytes = new TextEncoder().encode(csv);
+			checkUploadSize(bytes.length);
 			const slug = str(form, 'slug')?.trim() || null;
-			await storeClimate(program.id, user.id, { bytes: new Uint8Array(await file.arrayBuffer()), fileName: file.name }, form.get('name'), { slug });
+			await storeClimate(program.id, user.id, { bytes, fileName: str(form, 'fileName')?.trim() || 'climate.csv' }, form.get('name'), { slug });
 		} catch (e) {
-			if (e instanceof UploadError) return fail(400, { action: 'uploadClimate', field: e.field, message: e.message, issues: e.issues.slice(0, 20), values: echo(form) });
+			if (e instanceof UploadError) return fail(400, { action: 'uploadClimate', field: e.field === 'file' ? 'csv' : e.field, message: e.message, issues: e.issues.slice(0, 20), values: echo(form) });
 			if (e instanceof YearError) return fail(e.status === 404 ? 404 : 400, { action: 'uploadClimate', field: e.field, message: e.message, issues: [], values: echo(form) });
 			throw e;
 		}
@@ -121,7 +123,7 @@ export const actions: Actions = {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
 		const form = await request.formData();
 		try {
-			const { name, data } = await patternFromForm(form);
+			const { name, data } = patternFromForm(form);
 			await savePattern(program.id, user.id, name, data, str(form, 'slug')?.trim() || null);
 		} catch (e) {
 			if (e instanceof YearError) return fail(e.status === 404 ? 404 : 400, { action: 'savePattern', field: e.field, message: e.message, issues: [], values: echo(form) });

@@ -100,6 +100,13 @@ describe('year of use over HTTP', () => {
 			expect(Number(fleetYear[4])).toBe(result.events * 7);
 			const fixed = result.policies.find((p: { kind: string }) => p.kind === 'fixed');
 			expect(Number(fleetYear[6])).toBeCloseTo(((fixed.timeSaved_s / 3600) * 7), 5);
+			// One digest to each subscribed member (the demo manager), stored with the evaluation.
+			const mail = await queryDb<{ dedupe_key: string; to_address: string; subject: string; text: string }>(app.dataDir, "SELECT dedupe_key, to_address, subject, text FROM mail_outbox WHERE kind = 'year-digest' AND dedupe_key LIKE ?", [`year-digest:${id}:%`]);
+			expect(mail.map((m) => m.to_address)).toEqual([DEMO.manager]);
+			expect(mail[0].subject).toContain('Year of use: Coastal check');
+			expect(mail[0].text).toContain('Calibration table');
+			expect(mail[0].text).toContain(`/programs/${programId}/year/${id}`);
+			expect(mail[0].text).toMatch(/simulation results inform but do not replace/i);
 		});
 
 		it('should refuse a viewer', async () => {

@@ -10,7 +10,9 @@
 import crypto from 'node:crypto';
 import { gunzipSync, gzipSync } from 'node:zlib';
 import { Op } from 'sequelize';
-import { ChargingPatternRow, Climate, ParameterSet, SweepPoint, SweepScenario, User, YearEvaluation, type Sweep } from './db/models/index';
+import { ChargingPatternRow, Climate, ParameterSet, Program, SweepPoint, SweepScenario, User, YearEvaluation, type Sweep } from './db/models/index';
+import { enqueue, mailWrite } from './mail/outbox';
+import { yearDigestMessages } from './mail/year-digest';
 import { sequelize } from './db/index';
 import { parseClimate, summariseClimate } from '../year/climate';
 import { validatePattern, PatternError, type ChargingPattern } from '../year/pattern';
@@ -211,7 +213,11 @@ export async function sweepNodes(sweep: Sweep, cellId: string, packId: string): 
 		order: [['scenario_index', 'ASC'], ['strategy_index', 'ASC']]
 	});
 	const byScenario = new Map<number, SweepPoint[]>();
-	for (const p of points) byScenario.set(p.scenario_index, [...(byScenario.get(p.scenario_index) ?? []), p]);
+	for (const p of points) {
+		const list = byScenario.get(p.scenario_index);
+		if (list) list.push(p);
+		else byScenario.set(p.scenario_index, [p]);
+	}
 	return mine.map((s): SweepNode => {
 		const a = JSON.parse(s.axes) as ScenarioKey;
 		const pts = byScenario.get(s.scenario_index) ?? [];
@@ -350,17 +356,39 @@ export async function createEvaluation(programId: number, userId: string | null,
 		if (e instanceof LookupError) throw new YearError(e.message, e.field);
 		throw e;
 	}
-	return YearEvaluation.create({
-		program_id: programId,
-		name,
-		climate_id: climate.id,
-		pattern_id: patternRow.id,
-		sweep_id: sweep.id,
-		mode: 'lookup',
-		status: 'done',
-		settings: JSON.stringify(settings),
-		result: JSON.stringify(result),
-		created_by: userId
+	const program = await Program.findByPk(programId);
+	// The evaluation and its digest to subscribed members are stored together or not at all.
+	return mailWrite(async (transaction) => {
+		const row = await YearEvaluation.create(
+			{
+				program_id: programId,
+				name,
+				climate_id: climate.id,
+				pattern_id: patternRow.id,
+				sweep_id: sweep.id,
+				mode: 'lookup',
+				status: 'done',
+				settings: JSON.stringify(settings),
+				result: JSON.stringify(result),
+				created_by: userId
+			},
+			{ transaction }
+		);
+		const messages = await yearDigestMessages({
+			evaluationId: row.id,
+			programId,
+			programName: program?.name ?? '',
+			name,
+			climate: `${climate.name} v${climate.version}${climate.invented ? ' (invented)' : ''}`,
+			pattern: `${patternRow.name} v${patternRow.version}`,
+			sweepId: sweep.id,
+			fleetSize,
+			currency: pattern.currency,
+			prices: pattern,
+			result
+		});
+		await enqueue(messages, transaction);
+		return row;
 	});
 }
 

@@ -4,8 +4,8 @@
  *
  * Expected values are worked by hand from the definitions (common practice, no source):
  * Hamilton (largest-remainder) apportionment, multilinear interpolation on a rectilinear grid
- * (e.g. Press et al., Numerical Recipes, 3rd ed., §3.6 "Interpolation on a grid in multidimensions",
- * bilinear eq. 3.6.5, extended to three axes), the binomial standard deviation √(N·p·(1 − p))
+ * (Press et al., Numerical Recipes, 3rd ed., §3.6 "Interpolation on a grid in multidimensions",
+ * the bilinear formula extended to three axes — section cited from memory), the binomial standard deviation √(N·p·(1 − p))
  * of a multinomial count, and the Gregorian calendar (8 760 / 8 784 hours).
  */
 import { describe, expect, it } from 'vitest';

@@ -66,6 +66,12 @@ const RULES: Record<string, Rule> = {
 	'GET /programs/[programId]/strategies/[strategyId]': 'member',
 	'POST /programs/[programId]/strategies/[strategyId]?/comment': 'comment',
 	'POST /programs/[programId]/strategies/[strategyId]?/move': 'decide',
+	'GET /programs/[programId]/year': 'member',
+	'POST /programs/[programId]/year?/uploadClimate': 'edit',
+	'POST /programs/[programId]/year?/savePattern': 'edit',
+	'POST /programs/[programId]/year?/evaluate': 'comment',
+	'GET /programs/[programId]/year/[evaluationId]': 'member',
+	'GET /programs/[programId]/year/[evaluationId]/export': 'member',
 	'GET /programs/[programId]/sweeps': 'member',
 	'GET /programs/[programId]/sweeps/new': 'edit',
 	'POST /programs/[programId]/sweeps/new?/default': 'edit',
@@ -127,7 +133,7 @@ function refusedStatuses(rule: Rule, who: Who, method: string, key: string): num
 
 let app: RunningApp;
 const clients = {} as Record<Who, Client>;
-const ids = { programId: 0, sweepId: 0, pointId: 0, strategyId: 0, inputId: 0, messageId: 0, uploadId: 0, checkId: 0 };
+const ids = { programId: 0, sweepId: 0, pointId: 0, strategyId: 0, inputId: 0, messageId: 0, uploadId: 0, checkId: 0, evaluationId: 0 };
 
 beforeAll(async () => {
 	app = await startApp();
@@ -176,6 +182,20 @@ beforeAll(async () => {
 	const cellId = (await queryDb<{ id: number }>(app.dataDir, "SELECT id FROM parameter_sets WHERE kind = 'cell' ORDER BY id LIMIT 1"))[0].id;
 	const checked = await clients.engineer.form(`/programs/${ids.programId}/checks?/run`, { uploadId: String(ids.uploadId), cellInputId: String(cellId), initialSoc_pct: '30' });
 	ids.checkId = Number(/checks\/(\d+)/.exec(checked.headers.get('location') ?? '')![1]);
+	// A year-of-use evaluation of that sweep with the seeded invented climate and pattern.
+	const climateId = (await queryDb<{ id: number }>(app.dataDir, 'SELECT id FROM climates ORDER BY id LIMIT 1'))[0].id;
+	const patternId = (await queryDb<{ id: number }>(app.dataDir, 'SELECT id FROM charging_patterns ORDER BY id LIMIT 1'))[0].id;
+	const evaluated = await clients.engineer.form(`/programs/${ids.programId}/year?/evaluate`, {
+		name: 'Matrix year',
+		climateId: String(climateId),
+		patternId: String(patternId),
+		sweepId: String(ids.sweepId),
+		fixedLeadTime_min: '10',
+		fixedSetpoint_C: '25',
+		fixedBelowAmbient_C: '',
+		fleetSize: '10'
+	});
+	ids.evaluationId = Number(/year\/(\d+)/.exec(evaluated.headers.get('location') ?? '')![1]);
 }, 240_000);
 afterAll(async () => {
 	await app?.stop();
@@ -191,6 +211,7 @@ function concrete(id: string): string {
 		.replace('[messageId]', String(ids.messageId))
 		.replace('[uploadId]', String(ids.uploadId))
 		.replace('[checkId]', String(ids.checkId))
+		.replace('[evaluationId]', String(ids.evaluationId))
 		.replace('[token]', 'abcdefghijklmnopqrstuvwxyz');
 }
 

@@ -5,6 +5,7 @@ import m003 from './003-strategies';
 import m004 from './004-mail';
 import m005 from './005-uploads';
 import m010 from './010-fronts-beat-baseline';
+import m030 from './030-year-of-use';
 
 /** Applied in this order; append new migrations, never edit or remove a released one. */
-export const migrations: Migration[] = [m001, m002, m003, m004, m005, m010];
+export const migrations: Migration[] = [m001, m002, m003, m004, m005, m010, m030];

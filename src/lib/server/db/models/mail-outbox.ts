@@ -3,7 +3,7 @@ import { sequelize } from '../index';
 
 export const MAIL_STATUSES = ['pending', 'sent', 'failed'] as const;
 export type MailStatus = (typeof MAIL_STATUSES)[number];
-export type MailKind = 'sweep-digest' | 'invitation' | 'strategy-event' | 'strategy-summary';
+export type MailKind = 'sweep-digest' | 'invitation' | 'strategy-event' | 'strategy-summary' | 'year-digest';
 
 /** One message to one recipient, rendered when the event happened and sent by the dispatcher. */
 export class MailOutbox extends Model {

@@ -6,7 +6,7 @@
  * Expectations are common practice, no source (calendar: 8 760 / 8 784 hours).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { Client, DEMO, seedAsync, startApp, tempDataDir, type RunningApp } from '../helpers/app';
+import { Client, DEMO, seed, startApp, tempDataDir, type RunningApp } from '../helpers/app';
 import { databaseChecksum, queryDb } from '../helpers/db-checksum';
 import { climateCsv_C } from '../../src/lib/year/climate';
 
@@ -43,7 +43,7 @@ const goodEvaluation = () => ({
 
 beforeAll(async () => {
 	const dataDir = tempDataDir();
-	await seedAsync(dataDir, 'scripts/seed.ts', { PARETHERM_SEED_YEAR_SWEEP: '1' });
+	await seed(dataDir, 'scripts/seed.ts', { PARETHERM_SEED_YEAR_SWEEP: '1' });
 	app = await startApp({ dataDir, seed: false });
 	for (const who of ['engineer', 'manager', 'viewer', 'architect'] as const) {
 		clients[who] = new Client(app.url);

@@ -109,7 +109,17 @@ function messageOf(res: Response, text: string): string | null {
 	if (type.includes('text/html')) {
 		// SvelteKit puts the action's fail() data (form) or the error (error) into the page payload.
 		const m = /\bform:\s*\{[^\n]*?\bmessage:"((?:[^"\\]|\\.)+)"/.exec(text) ?? /\berror:\s*\{message:"((?:[^"\\]|\\.)+)"/.exec(text);
-		return m ? m[1] : null;
+		if (m) return m[1];
+		// A value used twice (say the message and the first of its problems) is hoisted by the
+		// serialiser into a parameter: form: (function(a){return {…message:a…}}("the text")).
+		const hoisted = /\bform:\s*\(function\(([\w$,]*)\)\{return \{[^\n]*?\bmessage:([\w$]+)[,}][^\n]*?\}\}\(([^\n]*?)\)\)/.exec(text);
+		if (hoisted) {
+			const params = hoisted[1].split(',');
+			const args = [...hoisted[3].matchAll(/"((?:[^"\\]|\\.)*)"|([^,"]+)/g)].map((a) => a[1] ?? a[2]);
+			const value = args[params.indexOf(hoisted[2])];
+			if (typeof value === 'string' && value.trim()) return value;
+		}
+		return null;
 	}
 	return text.trim() ? text.trim().slice(0, 200) : null;
 }

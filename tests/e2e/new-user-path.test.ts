@@ -276,6 +276,7 @@ describe('a new user on the demo program', () => {
 		// Nothing was saved: the same version, and the edited text is still there to fix.
 		await go('/inputs');
 		await page.getByRole('link', { name: demoLfpPrismatic.name, exact: true }).click();
+		await page.waitForURL(/\/inputs\/\d+$/);
 		await expect(page.locator('h1').textContent()).resolves.toBe(heading);
 		await session.signOut();
 	});

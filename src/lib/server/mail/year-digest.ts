@@ -8,7 +8,7 @@ import type { YearResult } from '../../year/evaluate';
 import { policyFigures, type Prices } from '../../year/evaluate';
 import { mailConfig } from './config';
 import type { NewMessage } from './outbox';
-import { S, esc, frame, htmlTable, textTable, type Rendered } from './render';
+import { S, esc, frame, stackedTables, textTable, type Rendered } from './render';
 import { digestRecipients } from './sweep-digest';
 
 export interface YearDigest {
@@ -44,7 +44,7 @@ export function renderYearDigest(d: YearDigest, recipient: string): Rendered {
 		htmlBody: `<h1 style="${S.h1}">${esc(d.name)}</h1>
 <p style="${S.p}">Hello ${esc(recipient)}, a year-of-use evaluation was stored in ${esc(d.programName)}.</p>
 <p style="${S.p}">${esc(intro)}</p>
-${htmlTable(head, rows)}
+${stackedTables(head, rows)}
 ${note ? `<p style="${S.note}">${esc(note)}</p>` : ''}
 <p style="${S.p}"><a style="${S.button}" href="${esc(link)}">Open the evaluation</a></p>`,
 		textBody: `${d.name}\n\nHello ${recipient}, a year-of-use evaluation was stored in ${d.programName}.\n${intro}\n\n${textTable(head, rows)}\n${note ? `\n${note}\n` : ''}\nOpen it: ${link}\n`,

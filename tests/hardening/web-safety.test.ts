@@ -68,7 +68,8 @@ beforeAll(async () => {
 	const promoted = await c.engineer.form(`/programs/${ids.programId}/sweeps/${ids.sweepId}/points/${ids.pointId}?/promote`, { title: X.title, rationale: X.comment });
 	xssStrategyId = Number(/strategies\/(\d+)/.exec(promoted.headers.get('location') ?? '')?.[1]);
 	expect(xssStrategyId).toBeGreaterThan(0);
-	expect((await c.architect.form(`/programs/${ids.programId}/strategies/${xssStrategyId}?/comment`, { body: X.comment })).status).toBe(200);
+	// A successful comment redirects (post/redirect/get).
+	expect((await c.architect.form(`/programs/${ids.programId}/strategies/${xssStrategyId}?/comment`, { body: X.comment })).status).toBe(303);
 
 	const [input] = await queryDb<{ data: string }>(app.dataDir, 'SELECT data FROM parameter_sets WHERE id = ?', [ids.inputId]);
 	const saved = await c.engineer.form(`/programs/${ids.programId}/inputs/${ids.inputId}?/save`, { name: X.input, json: input.data });

@@ -21,8 +21,10 @@ describe('demo seed', () => {
 			{ kind: 'pack', n: 1 },
 			{ kind: 'scenario', n: 3 }
 		]);
-		const sweeps = await queryDb<{ id: number; status: string; simulation_count: number; simulations_done: number }>(dataDir, 'SELECT * FROM sweeps');
-		expect(sweeps).toHaveLength(1);
+		// The depot pre-conditioning sweep, then the year-of-use grid sweep.
+		const sweeps = await queryDb<{ id: number; status: string; simulation_count: number; simulations_done: number }>(dataDir, 'SELECT * FROM sweeps ORDER BY id');
+		expect(sweeps).toHaveLength(2);
+		expect(sweeps.map((s) => s.status)).toEqual(['done', 'done']);
 		expect(sweeps[0].status).toBe('done');
 		expect(sweeps[0].simulations_done).toBe(sweeps[0].simulation_count);
 		const points = await queryDb<{ n: number }>(dataDir, 'SELECT COUNT(*) AS n FROM sweep_points WHERE sweep_id = ?', [sweeps[0].id]);

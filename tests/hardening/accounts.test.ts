@@ -114,7 +114,8 @@ describe('strategy withdrawal', () => {
 
 		const proposer = await signedIn(DEMO.engineer);
 		expect(await (await proposer.get(page)).text()).toMatch(/value="withdrawn"/);
-		expect((await proposer.form(`${page}?/move`, { to: 'withdrawn', note: 'superseded by a later sweep' })).status).toBe(200);
+		// A successful move redirects back to the strategy page (post/redirect/get).
+		expect((await proposer.form(`${page}?/move`, { to: 'withdrawn', note: 'superseded by a later sweep' })).status).toBe(303);
 		expect(await state()).toBe('withdrawn');
 	});
 });

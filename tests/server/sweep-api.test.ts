@@ -180,9 +180,12 @@ describe('reading sweeps', () => {
 		expect(csv.status).toBe(200);
 		expect(csv.headers.get('content-type')).toMatch(/text\/csv/);
 		expect(csv.headers.get('content-disposition')).toMatch(/sweep-\d+-calibration\.csv/);
-		expect(csv.text.split('\r\n')[0]).toMatch(/^ambient_C,/);
+		const lines = csv.text.split('\r\n');
+		// Provenance first, as "# key: value" comment lines, then the header (see calibrationCsv in src/lib/engine/calibration.ts).
+		expect(lines[0]).toBe('# format: paretherm-calibration/2');
+		expect(lines.find((l) => !l.startsWith('#'))).toMatch(/^ambient_C,/);
 		const json = await call(calibrationRoute.GET as Handler, { user: architect, params, query: '?format=json&rule=fastest-within' });
-		expect(json.json.format).toBe('paretherm-calibration/1');
+		expect(json.json.format).toBe('paretherm-calibration/2');
 		expect(json.json.rows[0].rule).toMatch(/^(fastest-within-1\.5-kWh|baseline)$/);
 		const bad = await call(calibrationRoute.GET as Handler, { user: architect, params, query: '?format=xml' });
 		expect(bad.status).toBe(400);

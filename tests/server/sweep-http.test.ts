@@ -71,7 +71,8 @@ describe('sweeps over HTTP on the built app', () => {
 		expect(fronts.scenarios[0].seriesStatus).toBe('stored');
 		const csv = await engineer.get(`/api/programs/${programId}/sweeps/${id}/calibration?format=csv`);
 		expect(csv.status).toBe(200);
-		expect((await csv.text()).split('\r\n')).toHaveLength(3); // header, one scenario, final CRLF
+		const records = (await csv.text()).split('\r\n').filter((l) => !l.startsWith('#')); // provenance lines first
+		expect(records).toHaveLength(3); // header, one scenario, final CRLF
 		finishedId = id;
 	}, 240_000);
 

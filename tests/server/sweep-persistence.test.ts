@@ -220,7 +220,9 @@ describe('finalising a sweep', () => {
 		const { scenarios } = await sweepFronts(sweep, { fastestWithinEnergy_Wh: 0 });
 		for (const sc of scenarios) if (sc.rule) expect(sc.rule.energy_Wh!).toBeLessThanOrEqual(0);
 		const csv = await sweepCalibration(sweep, { kind: 'knee' }, 'csv');
-		const lines = csv.trimEnd().split('\r\n');
+		const all = csv.trimEnd().split('\r\n');
+		expect(all[0]).toBe('# format: paretherm-calibration/2');
+		const lines = all.filter((l) => !l.startsWith('#'));
 		expect(lines[0]).toMatch(/^ambient_C,state_of_health,arrival_soc,cell,pack,lead_time_min,setpoint_C/);
 		expect(lines).toHaveLength(3);
 		expect(lines[1]).toMatch(/^-10,1,0\.2,nmc,pack,/);

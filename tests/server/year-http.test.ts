@@ -9,6 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Client, DEMO, seed, startApp, tempDataDir, type RunningApp } from '../helpers/app';
 import { databaseChecksum, queryDb } from '../helpers/db-checksum';
 import { climateCsv_C } from '../../src/lib/year/climate';
+import { waitFor } from '../helpers/sweeps';
 
 let app: RunningApp;
 const clients = {} as Record<'engineer' | 'manager' | 'viewer' | 'architect', Client>;
@@ -107,6 +108,11 @@ describe('year of use over HTTP', () => {
 			expect(mail[0].text).toContain('Calibration table');
 			expect(mail[0].text).toContain(`/programs/${programId}/year/${id}`);
 			expect(mail[0].text).toMatch(/simulation results inform but do not replace/i);
+			// The outbox delivers in the background; wait for it so the next tests' database checksums are not racing it.
+			await waitFor('the year digest delivered', async () => {
+				const pending = await queryDb<{ n: number }>(app.dataDir, "SELECT COUNT(*) AS n FROM mail_outbox WHERE status = 'pending'");
+				return pending[0].n === 0;
+			}, 60_000);
 		});
 
 		it('should refuse a viewer', async () => {

@@ -75,3 +75,15 @@ describe('PARETHERM_JSON_BODY_LIMIT', () => {
 		expect(() => jsonBodyLimit({ PARETHERM_JSON_BODY_LIMIT: '12' })).toThrow(/PARETHERM_JSON_BODY_LIMIT must be a size of at least 1K/);
 	});
 });
+
+describe('NUL characters in JSON bodies', () => {
+	it('should refuse a string or key holding U+0000 with its path as the field', async () => {
+		const e = await refusal(readJsonBody(post(JSON.stringify({ scenarioId: 1, definition: { name: 'a\u0000b' } }))));
+		expect(e.status).toBe(400);
+		expect(e.field).toBe('definition.name');
+		expect(e.message).toContain('U+0000');
+		const k = await refusal(readJsonBody(post(JSON.stringify({ list: [1, { ['x\u0000']: 1 }] }))));
+		expect(k.field).toBe('list[1].x\\u0000');
+		await expect(readJsonBody(post(JSON.stringify({ name: 'plain \\u0000 text as six characters' })))).resolves.toBeTruthy();
+	});
+});

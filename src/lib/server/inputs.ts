@@ -116,6 +116,7 @@ function slugify(name: string): string {
 function cleanName(name: string): string {
 	const n = name.trim();
 	if (!n) throw new InputError('Give it a name.', 'name');
+	if (n.includes('\u0000')) throw new InputError('The name contains a NUL character (U+0000); remove it.', 'name');
 	if (n.length > 120) throw new InputError('Keep the name under 120 characters.', 'name');
 	return n;
 }

@@ -13,7 +13,9 @@ export const MAX_JSON_DEPTH = 32;
 export class JsonBodyError extends Error {
 	constructor(
 		message: string,
-		readonly status: 400 | 413
+		readonly status: 400 | 413,
+		/** The offending field's path (`definition.name`), or "body" for the body as a whole. */
+		readonly field = 'body'
 	) {
 		super(message);
 		this.name = 'JsonBodyError';
@@ -102,9 +104,37 @@ export async function readJsonBody(request: Request, opts: { limit?: number; max
 	const text = new TextDecoder('utf-8', { fatal: false }).decode(Buffer.concat(chunks));
 	if (jsonDepth(text, maxDepth) > maxDepth)
 		throw new JsonBodyError(`The JSON body nests arrays or objects deeper than ${maxDepth} levels; no request of this API needs more than a few.`, 400);
+	let value: unknown;
 	try {
-		return JSON.parse(text);
+		value = JSON.parse(text);
 	} catch {
 		throw new JsonBodyError(`The request body is not valid JSON${send}`, 400);
 	}
+	const nul = pathWithNul(value);
+	if (nul !== null) throw new JsonBodyError(`The field “${nul.slice(0, 80)}” contains a NUL character (U+0000), which no field accepts; remove it.`, 400, nul);
+	return value;
+}
+
+/**
+ * The path (`a.b[2]`) of the first string or key holding a NUL character (U+0000), or null.
+ * Stored text never holds one (SQLite ends a statement's text at it), so such a body is refused.
+ */
+export function pathWithNul(value: unknown, at = ''): string | null {
+	if (typeof value === 'string') return value.includes('\u0000') ? at || 'body' : null;
+	if (Array.isArray(value)) {
+		for (let i = 0; i < value.length; i++) {
+			const found = pathWithNul(value[i], `${at}[${i}]`);
+			if (found !== null) return found;
+		}
+		return null;
+	}
+	if (value && typeof value === 'object') {
+		for (const [key, v] of Object.entries(value)) {
+			const here = at ? `${at}.${key}` : key;
+			if (key.includes('\u0000')) return here.replace(/\u0000/g, '\\u0000');
+			const found = pathWithNul(v, here);
+			if (found !== null) return found;
+		}
+	}
+	return null;
 }

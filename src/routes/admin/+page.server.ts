@@ -1,4 +1,5 @@
 import { fail } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { Membership, Program, User } from '$lib/server/db/models/index';
 import { requireAdmin } from '$lib/server/auth/guard';
@@ -40,7 +41,7 @@ export const load: PageServerLoad = async ({ locals }) => {
 export const actions: Actions = {
 	create: async ({ locals, request, url }) => {
 		const admin = requireAdmin(locals);
-		const form = await request.formData();
+		const form = await readForm(request);
 		const name = String(form.get('name') ?? '').trim();
 		const email = normaliseEmail(String(form.get('email') ?? ''));
 		const isAdmin = form.get('isAdmin') === 'on';
@@ -67,7 +68,7 @@ export const actions: Actions = {
 	},
 	setActive: async ({ locals, request }) => {
 		const admin = requireAdmin(locals);
-		const form = await request.formData();
+		const form = await readForm(request);
 		const userId = String(form.get('userId') ?? '');
 		const active = form.get('active') === 'true';
 		const user = await User.findByPk(userId);
@@ -79,7 +80,7 @@ export const actions: Actions = {
 	},
 	invite: async ({ locals, request, url }) => {
 		const admin = requireAdmin(locals);
-		const form = await request.formData();
+		const form = await readForm(request);
 		const user = await User.findByPk(String(form.get('userId') ?? ''));
 		if (!user) return fail(404, { action: 'invite', message: 'That person no longer exists; reload the page.' });
 		const token = await createInvitation(user.id);

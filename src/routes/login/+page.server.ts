@@ -1,4 +1,5 @@
 import { fail, redirect } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { User } from '$lib/server/db/models/index';
 import { lucia } from '$lib/server/auth/lucia';
@@ -22,7 +23,7 @@ function retryMessage(wait_ms: number, now = Date.now()): string {
 
 export const actions: Actions = {
 	default: async ({ request, cookies, getClientAddress, url }) => {
-		const form = await request.formData();
+		const form = await readForm(request);
 		const emailRaw = form.get('email');
 		const password = form.get('password');
 		const email = typeof emailRaw === 'string' ? normaliseEmail(emailRaw).slice(0, 254) : '';

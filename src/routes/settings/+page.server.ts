@@ -5,6 +5,7 @@
 import { fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { requireUser } from '$lib/server/auth/guard';
+import { readForm } from '$lib/server/read-form';
 import { ROLE_LABELS } from '$lib/server/auth/roles';
 import { sequelize } from '$lib/server/db/index';
 import { Membership, NotificationSetting, Program, STRATEGY_MODES, type StrategyMode } from '$lib/server/db/models/index';
@@ -29,7 +30,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 export const actions: Actions = {
 	default: async ({ locals, request }) => {
 		const user = requireUser(locals);
-		const form = await request.formData();
+		const form = await readForm(request);
 		const mode = String(form.get('strategyMode') ?? '');
 		if (mode !== 'default' && !(STRATEGY_MODES as readonly string[]).includes(mode))
 			return fail(400, { field: 'strategyMode', message: 'Choose how strategy notifications arrive: default, immediately, daily summary or off.' });

@@ -33,24 +33,6 @@ class WaitingDatabase extends sqlite3.Database {
 			callback(err);
 		});
 	}
-	// Sequelize's dialect calls only these two with SQL text.
-	override all(sql: string, ...rest: any[]): this {
-		return super.all(withNulSpelledOut(sql), ...rest);
-	}
-	override run(sql: string, ...rest: any[]): this {
-		return super.run(withNulSpelledOut(sql), ...rest);
-	}
-}
-
-/**
- * Sequelize writes string values into the SQL text as quoted literals, and SQLite stops reading a
- * statement at a NUL character, so a value containing U+0000 (say, a form field "a\0b") cut the
- * statement inside its literal and failed with a syntax error (a 500). A NUL can only come from
- * such a value, always inside a single-quoted literal, so it is spelled out as '||char(0)||'
- * there: the statement stays whole and the stored value stays exactly what was sent.
- */
-function withNulSpelledOut(sql: string): string {
-	return typeof sql === 'string' && sql.includes('\u0000') ? sql.replace(/\u0000/g, "'||char(0)||'") : sql;
 }
 const dialectModule = { ...sqlite3, Database: WaitingDatabase };
 

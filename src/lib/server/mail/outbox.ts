@@ -8,6 +8,7 @@
  */
 import { Op, Transaction } from 'sequelize';
 import { sequelize } from '../db/index';
+import { serialized } from '../db/write-queue';
 import { MailOutbox, type MailKind } from '../db/models/index';
 import { mailConfig, type MailConfig } from './config';
 import type { Rendered } from './render';
@@ -15,15 +16,14 @@ import { compose, messageIdFor, type MailTransport } from './transport';
 
 export const log = (m: string) => console.log(`[paretherm mail] ${m}`);
 
-// All mail writes run one after another in this process: marks are checked and written without
-// interleaving, and mail never holds two SQLite write transactions at once.
-let chain: Promise<unknown> = Promise.resolve();
+/**
+ * A mail write: one transaction in the process's one write queue (shared with the sweep service),
+ * so marks are checked and written without interleaving with any other write.
+ */
 export function mailWrite<T>(fn: (t: Transaction) => Promise<T>): Promise<T> {
 	// IMMEDIATE takes SQLite's write lock at BEGIN, so a read inside cannot be invalidated by
 	// another connection's write before this transaction writes (no SQLITE_BUSY_SNAPSHOT).
-	const run = chain.then(() => sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, fn));
-	chain = run.catch(() => {});
-	return run;
+	return serialized(() => sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, fn));
 }
 
 export interface NewMessage {

@@ -12,7 +12,7 @@ export async function apiHandler(fn: () => Promise<Response>): Promise<Response>
 		return await fn();
 	} catch (e) {
 		if (e instanceof SweepInputError) return json({ error: e.message, ...(e.field ? { field: e.field } : {}) }, { status: e.status });
-		if (e instanceof JsonBodyError) return json({ error: e.message, field: 'body' }, { status: e.status });
+		if (e instanceof JsonBodyError) return json({ error: e.message, field: e.field }, { status: e.status });
 		if (isHttpError(e)) return json({ error: e.body.message }, { status: e.status });
 		if (isRedirect(e)) throw e;
 		throw e;

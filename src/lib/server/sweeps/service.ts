@@ -15,6 +15,7 @@ import { gunzipSync } from 'node:zlib';
 import { LRUCache } from 'lru-cache';
 import { Op, UniqueConstraintError, literal, type Transaction } from 'sequelize';
 import { sequelize } from '../db/index';
+import { serialized } from '../db/write-queue';
 import { ACTIVE_SWEEP_STATUSES, Sweep, SweepChunk, SweepPoint, SweepScenario, SweepSeries, type SweepStatus } from '../db/models/index';
 import { chunkTasks, expandScenarios, expandStrategies, gridSize, simulationCount, type Scenario as GridScenario, type SweepDefinition, type TaskChunk } from '../../engine/sweep-grid';
 import { calibrateScenario, fastestWithin, type EvaluatedPoint } from '../../engine/calibration';
@@ -33,16 +34,8 @@ export { SweepInputError } from './request';
 
 const log = (m: string) => console.log(`[paretherm sweeps] ${m}`);
 
-// ---------------------------------------------------------------------------------------------
-// Serialising writes
-
-let chain: Promise<unknown> = Promise.resolve();
-/** Run `fn` after every write queued before it (and before any queued after it). */
-export function serialized<T>(fn: () => Promise<T>): Promise<T> {
-	const run = chain.then(fn, fn);
-	chain = run.catch(() => {});
-	return run;
-}
+// Every write runs in the process's one write queue (db/write-queue.ts).
+export { serialized };
 
 // ---------------------------------------------------------------------------------------------
 // Plans: what a sweep row expands to (cached; definition and inputs never change after creation)

@@ -1,4 +1,5 @@
 import { fail } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { requireAdmin } from '$lib/server/auth/guard';
 import { MailOutbox, MAIL_STATUSES, type MailStatus } from '$lib/server/db/models/index';
@@ -48,7 +49,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 export const actions: Actions = {
 	retry: async ({ locals, request }) => {
 		requireAdmin(locals);
-		const id = Number((await request.formData()).get('messageId'));
+		const id = Number((await readForm(request)).get('messageId'));
 		if (!Number.isInteger(id) || id < 1) return fail(400, { message: 'Choose a message to retry.' });
 		const n = await retryMessages([id]);
 		if (!n) return fail(404, { message: `Message #${id} is not waiting or failed (already sent, or gone); reload the page.` });

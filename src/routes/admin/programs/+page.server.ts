@@ -1,4 +1,5 @@
 import { fail } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { Membership, Program, User } from '$lib/server/db/models/index';
 import { requireAdmin } from '$lib/server/auth/guard';
@@ -40,7 +41,7 @@ async function programFrom(form: FormData) {
 export const actions: Actions = {
 	createProgram: async ({ locals, request }) => {
 		requireAdmin(locals);
-		const form = await request.formData();
+		const form = await readForm(request);
 		const name = String(form.get('name') ?? '').trim();
 		const description = String(form.get('description') ?? '').trim();
 		if (!name || name.length > 120)
@@ -54,7 +55,7 @@ export const actions: Actions = {
 	},
 	addMember: async ({ locals, request }) => {
 		requireAdmin(locals);
-		const form = await request.formData();
+		const form = await readForm(request);
 		const program = await programFrom(form);
 		if (!program) return fail(404, { action: 'addMember', message: 'That program does not exist; reload the page.' });
 		const email = normaliseEmail(String(form.get('email') ?? ''));
@@ -73,7 +74,7 @@ export const actions: Actions = {
 	},
 	removeMember: async ({ locals, request }) => {
 		requireAdmin(locals);
-		const form = await request.formData();
+		const form = await readForm(request);
 		const program = await programFrom(form);
 		if (!program) return fail(404, { action: 'removeMember', message: 'That program does not exist; reload the page.' });
 		const userId = String(form.get('userId') ?? '');

@@ -1,4 +1,5 @@
 import { error, fail, redirect } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { User } from '$lib/server/db/models/index';
 import { acceptInvitation, findOpenInvitation } from '$lib/server/auth/users';
@@ -16,7 +17,7 @@ export const actions: Actions = {
 	default: async ({ params, request, cookies }) => {
 		const inv = await findOpenInvitation(params.token);
 		if (!inv) return fail(404, { message: 'This invitation link is unknown, used or expired.' });
-		const form = await request.formData();
+		const form = await readForm(request);
 		const rawPassword = form.get('password');
 		const rawConfirm = form.get('confirm');
 		// A file part would otherwise become the password "[object File]".

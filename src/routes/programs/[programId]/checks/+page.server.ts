@@ -1,4 +1,5 @@
 import { fail, redirect } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { requireProgramRole } from '$lib/server/auth/guard';
 import { ParameterSet } from '$lib/server/db/models/index';
@@ -47,7 +48,7 @@ export const actions: Actions = {
 	/** Parse, validate and store a CSV upload; a refused file stores nothing. */
 	upload: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request, { files: true });
 		const file = form.get('file');
 		if (!(file instanceof File) || (file.size === 0 && !file.name))
 			return fail(400, { action: 'upload', field: 'file', message: 'Choose a CSV file to upload.', issues: [], values: echo(form) });
@@ -68,7 +69,7 @@ export const actions: Actions = {
 	/** Replay a measured log through a cell parameter set version and store the check. */
 	run: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request);
 		try {
 			const req = checkRequestFromForm(form);
 			const check = await runModelCheck(program.id, user.id, req);

@@ -1,4 +1,5 @@
 import { fail, redirect } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { requireProgramRole } from '$lib/server/auth/guard';
 import { createInput, InputError, KIND_LABEL, latestInputs, parseJsonText, readExchange, isKind, getInput } from '$lib/server/inputs';
@@ -22,7 +23,7 @@ export const actions: Actions = {
 	/** Import a parameter file in our exchange format (uploaded or pasted). */
 	import: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request, { files: true });
 		const file = form.get('file');
 		let text = String(form.get('json') ?? '');
 		if (file instanceof File && file.size > 0) {
@@ -43,7 +44,7 @@ export const actions: Actions = {
 	/** A new scenario from the form, starting from an existing one for the fields the form does not show. */
 	createScenario: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request);
 		const name = String(form.get('name') ?? '');
 		const fromRaw = String(form.get('from') ?? '');
 		let base: Record<string, unknown> = {};
@@ -66,7 +67,7 @@ export const actions: Actions = {
 	/** Copy an existing input under a new name (a new slug, version 1). */
 	duplicate: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request);
 		const raw = String(form.get('inputId') ?? '');
 		if (!/^\d{1,10}$/.test(raw)) return fail(400, { action: 'duplicate', field: 'inputId', message: 'Choose the input to duplicate.' });
 		const src = await getInput(program.id, Number(raw));

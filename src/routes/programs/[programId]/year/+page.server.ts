@@ -1,4 +1,5 @@
 import { fail, redirect } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { requireProgramRole } from '$lib/server/auth/guard';
 import { ParameterSet, Sweep } from '$lib/server/db/models/index';
@@ -102,7 +103,7 @@ export const actions: Actions = {
 	 */
 	uploadClimate: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request);
 		const csv = str(form, 'csv') ?? '';
 		if (!csv.trim())
 			return fail(400, { action: 'uploadClimate', field: 'csv', message: 'Choose the CSV file of the hourly ambient year (or paste its text).', issues: [], values: echo(form) });
@@ -121,7 +122,7 @@ export const actions: Actions = {
 	/** A charging pattern from the form or from JSON; nothing stored when refused. */
 	savePattern: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request);
 		try {
 			const { name, data } = patternFromForm(form);
 			await savePattern(program.id, user.id, name, data, str(form, 'slug')?.trim() || null);
@@ -135,7 +136,7 @@ export const actions: Actions = {
 	evaluate: async ({ locals, params, request }) => {
 		// Engineers, architects and managers may evaluate (the roles that take part in decisions).
 		const { program, user } = await requireProgramRole(locals, params.programId, 'comment');
-		const form = await request.formData();
+		const form = await readForm(request);
 		let id: number;
 		try {
 			id = (await createEvaluation(program.id, user.id, (k) => str(form, k))).id;

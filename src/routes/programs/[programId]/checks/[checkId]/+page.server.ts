@@ -1,4 +1,5 @@
 import { error, fail } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { ParameterSet, Upload, User } from '$lib/server/db/models/index';
@@ -50,7 +51,7 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 export const actions: Actions = {
 	comment: async ({ locals, params, request, url }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'comment');
-		const form = await request.formData();
+		const form = await readForm(request);
 		const row = await checkOf(program.id, params.checkId);
 		try {
 			await addCheckComment(row, user.id, form.get('body'));

@@ -1,4 +1,5 @@
 import { error, fail, redirect } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { getInput, InputError, KIND_LABEL, parseJsonText, saveVersion, versionsOf } from '$lib/server/inputs';
@@ -29,7 +30,7 @@ export const actions: Actions = {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
 		const row = await getInput(program.id, parseId(params.inputId, 'input'));
 		if (!row) return fail(404, { field: null, message: 'This input no longer exists; reload the page.' });
-		const form = await request.formData();
+		const form = await readForm(request);
 		const name = String(form.get('name') ?? row.name);
 		try {
 			let data: unknown;

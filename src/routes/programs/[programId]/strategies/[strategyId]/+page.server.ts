@@ -1,4 +1,5 @@
 import { error, fail } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { roleCan } from '$lib/server/auth/roles';
@@ -52,7 +53,7 @@ export const actions: Actions = {
 	comment: async ({ locals, params, request, url }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'comment');
 		const s = await strategyOf(program.id, params.strategyId);
-		const form = await request.formData();
+		const form = await readForm(request);
 		try {
 			const body = cleanText(form.get('body'), 'comment', MAX_COMMENT_CHARS);
 			await addComment(s, user.id, body);
@@ -65,7 +66,7 @@ export const actions: Actions = {
 	move: async ({ locals, params, request, url }) => {
 		const { program, user, role } = await requireProgramRole(locals, params.programId, 'read');
 		const s = await strategyOf(program.id, params.strategyId);
-		const form = await request.formData();
+		const form = await readForm(request);
 		const to = String(form.get('to') ?? '');
 		if (!(STRATEGY_STATES as readonly string[]).includes(to)) return fail(400, { field: 'to', message: `Unknown state “${to.slice(0, 30)}”.` });
 		try {

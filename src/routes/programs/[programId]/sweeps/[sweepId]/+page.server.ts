@@ -1,4 +1,5 @@
 import { fail } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { requireProgramRole } from '$lib/server/auth/guard';
 import { getProgramSweep, sweepStatus } from '$lib/server/sweeps/results';
@@ -36,7 +37,7 @@ export const actions: Actions = {
 		try {
 			const sweep = await getProgramSweep(program.id, params.sweepId);
 			if (sweep.status !== 'queued' && sweep.status !== 'running') return fail(409, { message: `This sweep has already ended (${sweep.status}); nothing to cancel.` });
-			const form = await request.formData();
+			const form = await readForm(request);
 			if (form.get('confirm') !== 'yes') return fail(400, { field: 'confirm', message: 'Confirm that you want to cancel this sweep (“Yes, cancel the sweep”).' });
 			if (!(await cancelSweep(sweep.id))) return fail(409, { message: 'This sweep ended before it could be cancelled; nothing to cancel.' });
 		} catch (e) {

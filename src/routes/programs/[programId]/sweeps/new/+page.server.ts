@@ -1,4 +1,5 @@
 import { fail, redirect } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { requireProgramRole } from '$lib/server/auth/guard';
 import { latestInputs } from '$lib/server/inputs';
@@ -35,7 +36,7 @@ export const load: PageServerLoad = async ({ locals, params }) => {
 export const actions: Actions = {
 	default: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request);
 		const values: BuilderValues = {
 			name: String(form.get('name') ?? ''),
 			scenarioId: String(form.get('scenarioId') ?? ''),

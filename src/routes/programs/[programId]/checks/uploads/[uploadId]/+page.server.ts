@@ -1,4 +1,5 @@
 import { error, fail, redirect } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { ModelCheck, User } from '$lib/server/db/models/index';
@@ -36,7 +37,7 @@ export const actions: Actions = {
 	/** A new scenario version whose drive follows this profile. */
 	useInScenario: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request);
 		const row = await uploadOf(program.id, params.uploadId);
 		try {
 			const next = await useDriveProfile(row, program.id, form.get('inputId'), user.id);
@@ -49,7 +50,7 @@ export const actions: Actions = {
 	/** A new cell parameter set version whose chosen electrode uses this OCP table. */
 	useInCell: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
-		const form = await request.formData();
+		const form = await readForm(request);
 		const row = await uploadOf(program.id, params.uploadId);
 		try {
 			const next = await useOcpTable(row, program.id, form.get('inputId'), form.get('electrode'), user.id);

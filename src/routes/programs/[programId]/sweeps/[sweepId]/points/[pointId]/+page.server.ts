@@ -1,4 +1,5 @@
 import { error, fail, redirect } from '@sveltejs/kit';
+import { readForm } from '$lib/server/read-form';
 import type { Actions, PageServerLoad } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { getProgramSweep, pointView, sweepStatus } from '$lib/server/sweeps/results';
@@ -48,7 +49,7 @@ export const actions: Actions = {
 	promote: async ({ locals, params, request }) => {
 		const { program, user } = await requireProgramRole(locals, params.programId, 'edit');
 		const { sweep, point, scenario } = await loadPoint(program.id, params.sweepId, params.pointId);
-		const form = await request.formData();
+		const form = await readForm(request);
 		if (point.strategy_index === null) return fail(400, { field: 'title', message: 'The baseline is the pack’s own policy, not a strategy; pick a point of the grid.' });
 		if (sweep.status !== 'done') return fail(409, { field: 'title', message: 'Wait until the sweep has finished: time saved is known only then.' });
 		let id: number;

@@ -218,7 +218,7 @@ beforeAll(async () => {
 	// Three digest recipients: the manager (subscribed by the seed), the engineer and the architect.
 	for (const who of ['engineer', 'architect'] as const) {
 		const res = await (await signedIn(app, DEMO[who])).form('/settings', { strategyMode: 'default', digest: String(ids.programId) });
-		expect(res.status).toBe(200);
+		expect(res.status).toBe(303);
 	}
 }, 300_000);
 
@@ -369,7 +369,7 @@ describe('faults during sweeps', () => {
 		// The server accepts again; an administrator retries the failed messages.
 		refusing = false;
 		const admin = await signedIn(app, DEMO.admin);
-		expect((await admin.form('/admin/outbox?/retryFailed', {})).status).toBe(200);
+		expect((await admin.form('/admin/outbox?/retryFailed', {})).status).toBe(303);
 		const all = await waitFor('every message to be sent', async () => {
 			const r = await queryDb<{ id: number; status: string; message_id: string; to_address: string }>(dataDir, 'SELECT id, status, message_id, to_address FROM mail_outbox');
 			return r.every((m) => m.status === 'sent') ? r : null;

@@ -150,6 +150,16 @@ export class Client {
 		});
 	}
 
+	/**
+	 * After a successful form post (303 to the page, post/redirect/get), the page it leads to, read
+	 * with this client's cookies (which carry a message shown once); any other answer as it is.
+	 */
+	async follow(res: Response): Promise<Response> {
+		const location = res.headers.get('location');
+		if (res.status !== 303 || !location) return res;
+		return this.get(new URL(location, this.base).pathname + new URL(location, this.base).search);
+	}
+
 	json(pathname: string, method: string, body?: unknown) {
 		return this.request(pathname, {
 			method,

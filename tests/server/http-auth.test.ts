@@ -75,8 +75,9 @@ describe('deactivation', () => {
 			email: 'short.stay@paretherm.test',
 			mode: 'password'
 		});
-		expect(created.status).toBe(200);
-		const password = /one-time password <code[^>]*>([^<]+)</.exec(await created.text())![1];
+		expect(created.status).toBe(303);
+		expect(created.headers.get('location')).toBe('/admin');
+		const password = /one-time password <code[^>]*>([^<]+)</.exec(await (await admin.follow(created)).text())![1];
 
 		const person = new Client(app.url);
 		expect((await person.signIn('short.stay@paretherm.test', password)).status).toBe(303);
@@ -86,7 +87,8 @@ describe('deactivation', () => {
 		const html = await people.text();
 		const userId = new RegExp(`short.stay@paretherm.test[\\s\\S]*?name="userId" value="([a-z0-9]+)"`).exec(html)![1];
 		const off = await admin.form('/admin?/setActive', { userId, active: 'false' });
-		expect(off.status).toBe(200);
+		expect(off.status).toBe(303);
+		expect(await (await admin.follow(off)).text()).toContain('Short Stay is now deactivated');
 
 		const after = await person.get('/');
 		expect(after.status).toBe(303);
@@ -94,6 +96,25 @@ describe('deactivation', () => {
 		const again = await person.signIn('short.stay@paretherm.test', password);
 		expect(again.status).toBe(403);
 		expect(await again.text()).toContain('deactivated');
+	});
+});
+
+describe('post/redirect/get on the administration pages', () => {
+	it('should answer a successful admin post with 303 to its page, show the outcome once, and leave no ?/action in the address', async () => {
+		const admin = new Client(app.url);
+		expect((await admin.signIn(DEMO.admin)).status).toBe(303);
+		const made = await admin.form('/admin/programs?/createProgram', { name: 'Fleet trials', description: 'Depot vans, winter' });
+		expect(made.status).toBe(303);
+		expect(made.headers.get('location')).toBe('/admin/programs');
+		const page = await (await admin.follow(made)).text();
+		expect(page).toContain('Program “Fleet trials” created.');
+		// Shown once: a reload of the page does not repeat it (nor post again).
+		expect(await (await admin.get('/admin/programs')).text()).not.toContain('Program “Fleet trials” created.');
+
+		const retried = await admin.form('/admin/outbox?/retryFailed', {});
+		expect(retried.status).toBe(303);
+		expect(retried.headers.get('location')).toBe('/admin/outbox?done=none-failed');
+		expect(await (await admin.follow(retried)).text()).toContain('No failed messages to retry.');
 	});
 });
 

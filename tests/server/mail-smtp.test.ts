@@ -47,8 +47,8 @@ describe('mail through SMTP from the built app', () => {
 
 	it('should deliver the invitation with the one-time link to the SMTP server intact', async () => {
 		const res = await admin.form('/admin?/create', { name: 'Åsa Ørsted-Lindqvist', email: 'asa.orsted@paretherm.test', mode: 'invite' });
-		expect(res.status).toBe(200);
-		const page = await res.text();
+		expect(res.status).toBe(303); // post/redirect/get: the link is shown once on the page it leads to
+		const page = await (await admin.follow(res)).text();
 		link = /http:\/\/localhost:\d+\/invite\/[a-z2-7]{20,64}/.exec(page)?.[0] ?? '';
 		expect(link, 'the invite link is still shown on the page').not.toBe('');
 		expect(page).toContain('An invitation e-mail to asa.orsted@paretherm.test is queued');
@@ -126,7 +126,9 @@ describe('mail through SMTP from the built app', () => {
 			const stranger = await manager.form('/settings', { strategyMode: 'off', digest: '999999' });
 			expect(stranger.status).toBe(400);
 			const ok = await manager.form('/settings', { strategyMode: 'off' });
-			expect(ok.status).toBe(200);
+			expect(ok.status).toBe(303);
+			expect(ok.headers.get('location')).toBe('/settings?done=saved');
+			expect(await (await manager.follow(ok)).text()).toContain('Notification settings saved.');
 			const after = await (await manager.get('/settings')).text();
 			expect(after).not.toMatch(new RegExp(`value="${programId}"[^>]*checked`));
 			expect(after).toMatch(/value="off"[^>]*checked/);

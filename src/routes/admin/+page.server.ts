@@ -1,5 +1,6 @@
 import { fail } from '@sveltejs/kit';
 import { readForm } from '$lib/server/read-form';
+import { redirectWithFlash, takeFlash } from '$lib/server/after-post';
 import type { Actions, PageServerLoad } from './$types';
 import { Membership, Program, User } from '$lib/server/db/models/index';
 import { requireAdmin } from '$lib/server/auth/guard';
@@ -17,13 +18,15 @@ async function mailInvitation(userId: string, email: string, link: string, invit
 	}
 }
 
-export const load: PageServerLoad = async ({ locals }) => {
+export const load: PageServerLoad = async ({ locals, cookies, url }) => {
 	requireAdmin(locals);
+	const flash = takeFlash(cookies, url);
 	const users = await User.findAll({ order: [['name', 'ASC']] });
 	const memberships = await Membership.findAll();
 	const programs = await Program.findAll();
 	const programName = new Map(programs.map((p) => [p.id, p.name]));
 	return {
+		flash,
 		people: users.map((u) => ({
 			id: u.id,
 			name: u.name,
@@ -39,7 +42,7 @@ export const load: PageServerLoad = async ({ locals }) => {
 };
 
 export const actions: Actions = {
-	create: async ({ locals, request, url }) => {
+	create: async ({ locals, request, url, cookies }) => {
 		const admin = requireAdmin(locals);
 		const form = await readForm(request);
 		const name = String(form.get('name') ?? '').trim();
@@ -58,15 +61,15 @@ export const actions: Actions = {
 			// A one-time password shown once; the person changes it via an invitation later if wanted.
 			const password = newId(10);
 			await createUser({ name, email, password, isAdmin });
-			return { action: 'create', created: { email, password, link: null } };
+			redirectWithFlash(cookies, url, { created: { email, password, link: null } });
 		}
 		const user = await createUser({ name, email, isAdmin });
 		const token = await createInvitation(user.id);
 		const link = `${url.origin}/invite/${token}`;
 		const done = await mailInvitation(user.id, email, link, admin.name);
-		return { action: 'create', done, created: { email, password: null, link } };
+		redirectWithFlash(cookies, url, { done, created: { email, password: null, link } });
 	},
-	setActive: async ({ locals, request }) => {
+	setActive: async ({ locals, request, url, cookies }) => {
 		const admin = requireAdmin(locals);
 		const form = await readForm(request);
 		const userId = String(form.get('userId') ?? '');
@@ -76,9 +79,9 @@ export const actions: Actions = {
 		if (user.id === admin.id && !active)
 			return fail(400, { action: 'setActive', message: 'You cannot deactivate your own account.' });
 		await setActive(user.id, active);
-		return { action: 'setActive', done: `${user.name} is now ${active ? 'active' : 'deactivated; their sessions have ended'}.` };
+		redirectWithFlash(cookies, url, { done: `${user.name} is now ${active ? 'active' : 'deactivated; their sessions have ended'}.` });
 	},
-	invite: async ({ locals, request, url }) => {
+	invite: async ({ locals, request, url, cookies }) => {
 		const admin = requireAdmin(locals);
 		const form = await readForm(request);
 		const user = await User.findByPk(String(form.get('userId') ?? ''));
@@ -86,6 +89,6 @@ export const actions: Actions = {
 		const token = await createInvitation(user.id);
 		const link = `${url.origin}/invite/${token}`;
 		const done = await mailInvitation(user.id, user.email, link, admin.name);
-		return { action: 'invite', done, created: { email: user.email, password: null, link } };
+		redirectWithFlash(cookies, url, { done, created: { email: user.email, password: null, link } });
 	}
 };

@@ -6,6 +6,7 @@ import { fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
 import { requireUser } from '$lib/server/auth/guard';
 import { readForm } from '$lib/server/read-form';
+import { doneMessage, redirectDone } from '$lib/server/after-post';
 import { ROLE_LABELS } from '$lib/server/auth/roles';
 import { sequelize } from '$lib/server/db/index';
 import { Membership, NotificationSetting, Program, STRATEGY_MODES, type StrategyMode } from '$lib/server/db/models/index';
@@ -18,6 +19,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 	const programs = new Map((await Program.findAll({ where: { id: memberships.map((m) => m.program_id) } })).map((p) => [p.id, p.name]));
 	const setting = await NotificationSetting.findByPk(user.id);
 	return {
+		done: doneMessage(url, { saved: 'Notification settings saved.' }),
 		email: user.email,
 		programs: memberships
 			.map((m) => ({ id: m.program_id, name: programs.get(m.program_id) ?? `Program ${m.program_id}`, role: ROLE_LABELS[m.role] ?? m.role, roleKey: m.role, digest: Boolean(m.digest_subscribed) }))
@@ -28,7 +30,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 };
 
 export const actions: Actions = {
-	default: async ({ locals, request }) => {
+	default: async ({ locals, request, url }) => {
 		const user = requireUser(locals);
 		const form = await readForm(request);
 		const mode = String(form.get('strategyMode') ?? '');
@@ -48,6 +50,6 @@ export const actions: Actions = {
 			if (mode === 'default') await NotificationSetting.destroy({ where: { user_id: user.id }, transaction });
 			else await NotificationSetting.upsert({ user_id: user.id, strategy_mode: mode }, { transaction });
 		});
-		return { done: 'Notification settings saved.' };
+		redirectDone(url, 'saved');
 	}
 };

@@ -1,5 +1,6 @@
 import { fail } from '@sveltejs/kit';
 import { readForm } from '$lib/server/read-form';
+import { doneMessage, redirectDone } from '$lib/server/after-post';
 import type { Actions, PageServerLoad } from './$types';
 import { requireAdmin } from '$lib/server/auth/guard';
 import { MailOutbox, MAIL_STATUSES, type MailStatus } from '$lib/server/db/models/index';
@@ -7,6 +8,13 @@ import { describeSmtp, mailConfig } from '$lib/server/mail/config';
 import { retryMessages } from '$lib/server/mail/outbox';
 
 const PAGE = 100;
+
+/** Messages after a successful post (post/redirect/get), by `?done=` code. */
+const DONE = {
+	retried: 'The message will be sent again in a moment.',
+	'retried-failed': 'The failed messages will be sent again in a moment.',
+	'none-failed': 'No failed messages to retry.'
+};
 
 export const load: PageServerLoad = async ({ locals, url }) => {
 	requireAdmin(locals);
@@ -27,6 +35,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 		transport = (e as Error).message;
 	}
 	return {
+		done: doneMessage(url, DONE),
 		status,
 		counts: counts as Record<MailStatus, number>,
 		transport,
@@ -47,17 +56,17 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 };
 
 export const actions: Actions = {
-	retry: async ({ locals, request }) => {
+	retry: async ({ locals, request, url }) => {
 		requireAdmin(locals);
 		const id = Number((await readForm(request)).get('messageId'));
 		if (!Number.isInteger(id) || id < 1) return fail(400, { message: 'Choose a message to retry.' });
 		const n = await retryMessages([id]);
 		if (!n) return fail(404, { message: `Message #${id} is not waiting or failed (already sent, or gone); reload the page.` });
-		return { done: `Message #${id} will be sent again in a moment.` };
+		redirectDone(url, 'retried');
 	},
-	retryFailed: async ({ locals }) => {
+	retryFailed: async ({ locals, url }) => {
 		requireAdmin(locals);
 		const n = await retryMessages('all-failed');
-		return { done: n ? `${n} failed message${n === 1 ? '' : 's'} will be sent again in a moment.` : 'No failed messages to retry.' };
+		redirectDone(url, n ? 'retried-failed' : 'none-failed');
 	}
 };

@@ -1,18 +1,21 @@
 import { fail } from '@sveltejs/kit';
 import { readForm } from '$lib/server/read-form';
+import { redirectWithFlash, takeFlash } from '$lib/server/after-post';
 import type { Actions, PageServerLoad } from './$types';
 import { Membership, Program, User } from '$lib/server/db/models/index';
 import { requireAdmin } from '$lib/server/auth/guard';
 import { isProgramRole, PROGRAM_ROLES, ROLE_LABELS } from '$lib/server/auth/roles';
 import { normaliseEmail } from '$lib/server/auth/users';
 
-export const load: PageServerLoad = async ({ locals }) => {
+export const load: PageServerLoad = async ({ locals, cookies, url }) => {
 	requireAdmin(locals);
+	const flash = takeFlash(cookies, url);
 	const programs = await Program.findAll({ order: [['name', 'ASC']] });
 	const memberships = await Membership.findAll();
 	const users = await User.findAll({ order: [['name', 'ASC']] });
 	const byId = new Map(users.map((u) => [u.id, u]));
 	return {
+		flash,
 		roles: PROGRAM_ROLES.map((r) => ({ value: r, label: ROLE_LABELS[r] })),
 		people: users.filter((u) => u.active).map((u) => ({ email: u.email, name: u.name })),
 		programs: programs.map((p) => ({
@@ -39,7 +42,7 @@ async function programFrom(form: FormData) {
 }
 
 export const actions: Actions = {
-	createProgram: async ({ locals, request }) => {
+	createProgram: async ({ locals, request, url, cookies }) => {
 		requireAdmin(locals);
 		const form = await readForm(request);
 		const name = String(form.get('name') ?? '').trim();
@@ -51,9 +54,9 @@ export const actions: Actions = {
 		if (await Program.findOne({ where: { name } }))
 			return fail(400, { action: 'createProgram', message: `A program called “${name}” already exists; choose another name.` });
 		const p = await Program.create({ name, description });
-		return { action: 'createProgram', done: `Program “${p.name}” created.` };
+		redirectWithFlash(cookies, url, { done: `Program “${p.name}” created.` });
 	},
-	addMember: async ({ locals, request }) => {
+	addMember: async ({ locals, request, url, cookies }) => {
 		requireAdmin(locals);
 		const form = await readForm(request);
 		const program = await programFrom(form);
@@ -67,12 +70,12 @@ export const actions: Actions = {
 		const existing = await Membership.findOne({ where: { program_id: program.id, user_id: user.id } });
 		if (existing) {
 			await existing.update({ role });
-			return { action: 'addMember', done: `${user.name} is now ${ROLE_LABELS[role].toLowerCase()} in ${program.name}.` };
+			redirectWithFlash(cookies, url, { done: `${user.name} is now ${ROLE_LABELS[role].toLowerCase()} in ${program.name}.` });
 		}
 		await Membership.create({ program_id: program.id, user_id: user.id, role, digest_subscribed: role === 'manager' });
-		return { action: 'addMember', done: `${user.name} added to ${program.name} as ${ROLE_LABELS[role].toLowerCase()}.` };
+		redirectWithFlash(cookies, url, { done: `${user.name} added to ${program.name} as ${ROLE_LABELS[role].toLowerCase()}.` });
 	},
-	removeMember: async ({ locals, request }) => {
+	removeMember: async ({ locals, request, url, cookies }) => {
 		requireAdmin(locals);
 		const form = await readForm(request);
 		const program = await programFrom(form);
@@ -80,6 +83,6 @@ export const actions: Actions = {
 		const userId = String(form.get('userId') ?? '');
 		const n = await Membership.destroy({ where: { program_id: program.id, user_id: userId } });
 		if (!n) return fail(404, { action: 'removeMember', message: 'That person is not a member; reload the page.' });
-		return { action: 'removeMember', done: 'Member removed.' };
+		redirectWithFlash(cookies, url, { done: 'Member removed.' });
 	}
 };

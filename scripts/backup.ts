@@ -5,6 +5,7 @@
  */
 import path from 'node:path';
 import { BackupError, DATABASE_NAME, backupDatabase, defaultBackupFile } from '../src/lib/server/backup';
+import { config } from '../src/lib/server/config';
 
 const args = process.argv.slice(2);
 if (args.includes('--help') || args.includes('-h')) {
@@ -16,7 +17,7 @@ if (outAt >= 0 && !args[outAt + 1]) {
 	console.error('--out needs a file name, e.g. npm run backup -- --out /backups/paretherm.sqlite');
 	process.exit(1);
 }
-const dataDir = path.resolve(process.env.PARETHERM_DATA_DIR ?? './data');
+const dataDir = config().dataDir;
 const out = outAt >= 0 ? path.resolve(args[outAt + 1]) : defaultBackupFile(dataDir);
 
 try {

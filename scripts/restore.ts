@@ -7,13 +7,14 @@
  */
 import path from 'node:path';
 import { BackupError, restoreDatabase } from '../src/lib/server/backup';
+import { config } from '../src/lib/server/config';
 
 const file = process.argv.slice(2).find((a) => !a.startsWith('-'));
 if (!file || process.argv.includes('--help') || process.argv.includes('-h')) {
 	console.log('Usage: npm run restore -- <backup file>   (data folder: PARETHERM_DATA_DIR, default ./data; stop the app first)');
 	process.exit(file ? 0 : 1);
 }
-const dataDir = path.resolve(process.env.PARETHERM_DATA_DIR ?? './data');
+const dataDir = config().dataDir;
 
 try {
 	const r = await restoreDatabase(file, dataDir);

@@ -1,4 +1,5 @@
 /** `npm run seed`: loads the invented demo program (idempotent). */
+import { config } from '../src/lib/server/config';
 import { seedDemo, DEMO_PASSWORD, DEMO_PEOPLE } from '../src/lib/server/demo/seed';
 import { sequelize } from '../src/lib/server/db/index';
 import { seedDemoSweep } from '../src/lib/server/sweeps/demo';
@@ -12,13 +13,13 @@ await seedDemoChecks(programId, { engineer: userIds.engineer, architect: userIds
 // Two invented climates and a charging pattern for the year-of-use page (fast).
 await seedDemoYearInputs(programId, userIds.engineer);
 // The finished demo sweep takes several seconds; test fixtures that do not need it skip it.
-if (process.env.PARETHERM_SEED_SWEEP !== '0') {
+if (config().seed.sweep) {
 	const t0 = performance.now();
 	const sweepId = await seedDemoSweep(programId, userIds.engineer);
 	console.log(`Demo sweep ${sweepId} finished (${((performance.now() - t0) / 1000).toFixed(1)} s).`);
 }
 // The year-of-use grid (30 simulations) and one evaluation of it; tests ask for it on its own.
-if (process.env.PARETHERM_SEED_SWEEP !== '0' || process.env.PARETHERM_SEED_YEAR_SWEEP === '1') {
+if (config().seed.sweep || config().seed.yearSweep) {
 	const t0 = performance.now();
 	const { sweepId, evaluationId } = await seedDemoYearSweep(programId, userIds.engineer);
 	console.log(`Year-of-use sweep ${sweepId} and evaluation ${evaluationId} ready (${((performance.now() - t0) / 1000).toFixed(1)} s).`);

@@ -1,17 +1,15 @@
 import { json, redirect, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { ensureDb } from '$lib/server/db/index';
 import { SECURITY_HEADERS } from '$lib/security-headers.js';
+import { env } from '$env/dynamic/private';
 import { jsonBodyLimit, tooLargeMessage } from '$lib/server/json-body';
 import { lucia } from '$lib/server/auth/lucia';
-import { throttleSettingsFromEnv } from '$lib/server/auth/throttle';
-import { queueCaps } from '$lib/server/sweeps/admission';
+import { useConfigSource } from '$lib/server/config';
 import { startRuntime } from '$lib/server/runtime';
 
 export const init: ServerInit = async () => {
-	// Settings read per request are checked once here, so a bad value stops the start with its name.
-	jsonBodyLimit();
-	throttleSettingsFromEnv();
-	queueCaps();
+	// Every setting is checked here, before anything starts: a bad value stops the start with its name.
+	useConfigSource(env);
 	await ensureDb();
 	await startRuntime();
 };

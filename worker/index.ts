@@ -18,13 +18,14 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import { config, ConfigError } from '../src/lib/server/config';
 import { targetFromEnv, describeTarget, type RedisTarget } from '../src/lib/server/queue/connection';
 import { startSweepWorker, type SweepWorkerHandle } from '../src/lib/server/queue/worker-runtime';
 
 function resolveTarget(): RedisTarget {
 	const fromEnv = targetFromEnv();
 	if (fromEnv) return fromEnv;
-	const socket = path.resolve(process.env.PARETHERM_DATA_DIR ?? './data', 'redis', 'redis.sock');
+	const socket = path.join(config().dataDir, 'redis', 'redis.sock');
 	if (fs.existsSync(socket)) return { kind: 'socket', path: socket };
 	console.error(
 		'[paretherm worker] No Redis to work for. Set REDIS_URL to the Redis server the web app uses ' +
@@ -36,11 +37,7 @@ function resolveTarget(): RedisTarget {
 
 /** Lower this process's priority before any thread starts (threads inherit it on Linux). */
 function lowerPriority(): number {
-	const wanted = Number(process.env.PARETHERM_WORKER_NICE ?? 0);
-	if (!Number.isInteger(wanted) || wanted < 0 || wanted > 19) {
-		console.error(`[paretherm worker] PARETHERM_WORKER_NICE must be a whole number from 0 to 19 (got “${process.env.PARETHERM_WORKER_NICE}”).`);
-		process.exit(2);
-	}
+	const wanted = config().workerNice ?? 0;
 	try {
 		if (wanted > os.getPriority(0)) os.setPriority(0, wanted);
 		return os.getPriority(0);
@@ -94,5 +91,5 @@ async function main() {
 
 main().catch((e) => {
 	console.error('[paretherm worker] failed to start:', e instanceof Error ? e.message : e);
-	process.exit(1);
+	process.exit(e instanceof ConfigError ? 2 : 1);
 });

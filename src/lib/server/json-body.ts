@@ -5,6 +5,8 @@
  * million "[" is refused in milliseconds instead of blocking the server.
  */
 
+import { config, parseByteSize, parseConfig, type Env } from './config';
+
 export const DEFAULT_JSON_BODY_LIMIT = 256 * 1024;
 /** Deeper than any request the API takes (a sweep nests 3 levels). */
 export const MAX_JSON_DEPTH = 32;
@@ -22,20 +24,10 @@ export class JsonBodyError extends Error {
 	}
 }
 
-/** "256K", "1M", "300000" → bytes (the same notation as BODY_SIZE_LIMIT). */
-export function parseByteSize(raw: string): number {
-	const m = /^\s*(\d+(?:\.\d+)?)\s*([kKmMgG]?)[bB]?\s*$/.exec(raw);
-	if (!m) return NaN;
-	const unit = { '': 1, k: 1024, m: 1024 ** 2, g: 1024 ** 3 }[m[2].toLowerCase() as '' | 'k' | 'm' | 'g'];
-	return Math.floor(Number(m[1]) * unit);
-}
+export { parseByteSize };
 
-export function jsonBodyLimit(env: NodeJS.ProcessEnv = process.env): number {
-	const raw = env.PARETHERM_JSON_BODY_LIMIT;
-	if (raw === undefined || raw.trim() === '') return DEFAULT_JSON_BODY_LIMIT;
-	const v = parseByteSize(raw);
-	if (!Number.isFinite(v) || v < 1024) throw new Error(`PARETHERM_JSON_BODY_LIMIT must be a size of at least 1K, such as 256K or 1M (got “${raw}”).`);
-	return v;
+export function jsonBodyLimit(env?: Env): number {
+	return (env ? parseConfig(env) : config()).jsonBodyLimit_bytes;
 }
 
 export function formatBytes(n: number): string {

@@ -8,11 +8,12 @@ import { startSweepRuntime } from './sweeps/runtime';
 import { startMailDispatcher } from './mail/index';
 import { createRedisClient } from './queue/connection';
 import { useThrottleStore } from './auth/throttle';
+import { config } from './config';
 
 let started: Promise<void> | null = null;
 
 export function startRuntime(): Promise<void> {
-	if (process.env.PARETHERM_NO_RUNTIME === '1') return Promise.resolve();
+	if (config().noRuntime) return Promise.resolve();
 	started ??= (async () => {
 		startMailDispatcher(); // first: mail works even when the sweep runtime cannot start
 		const rt = await startSweepRuntime();

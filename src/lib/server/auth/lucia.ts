@@ -1,13 +1,14 @@
 import { Lucia, TimeSpan } from 'lucia';
 import { SequelizeAdapter } from './adapter';
+import { config } from '../config';
 
 /**
  * Session cookies are Secure whenever the app is served over HTTPS (ORIGIN https://…), and in any
  * production run without an ORIGIN. A plain-HTTP ORIGIN (the local demo on http://localhost) gets
  * no Secure flag, because clients other than browsers would then drop the cookie.
  */
-const origin = process.env.ORIGIN?.trim();
-const secureCookie = origin ? origin.startsWith('https:') : process.env.NODE_ENV === 'production';
+const { origin, production } = config();
+const secureCookie = origin ? origin.startsWith('https:') : production;
 
 export const lucia = new Lucia(new SequelizeAdapter(), {
 	sessionExpiresIn: new TimeSpan(7, 'd'),

@@ -1,9 +1,10 @@
 import { hash, verify } from '@node-rs/bcrypt';
+import { config } from '../config';
 
 /** bcrypt reads only the first 72 bytes; longer input is refused rather than silently truncated. */
 export const PASSWORD_MAX_BYTES = 72;
 export const PASSWORD_MIN_LENGTH = 10;
-const COST = Number(process.env.PARETHERM_BCRYPT_COST ?? 11);
+const COST = config().bcryptCost;
 
 /** Returns an error message a user can act on, or null when the password is acceptable. */
 export function passwordProblem(password: string): string | null {

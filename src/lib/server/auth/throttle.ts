@@ -13,6 +13,7 @@
  */
 import { createHash } from 'node:crypto';
 import { RateLimiterMemory, RateLimiterRedis, type RateLimiterAbstract } from 'rate-limiter-flexible';
+import { config } from '../config';
 
 export interface ThrottleSettings {
 	freeFailures: number;
@@ -21,21 +22,8 @@ export interface ThrottleSettings {
 	window_s: number;
 }
 
-function envInt(name: string, fallback: number, min: number): number {
-	const raw = process.env[name];
-	if (raw === undefined || raw.trim() === '') return fallback;
-	const v = Number(raw);
-	if (!Number.isInteger(v) || v < min) throw new Error(`${name} must be a whole number of at least ${min} (got “${raw}”).`);
-	return v;
-}
-
 export function throttleSettingsFromEnv(): ThrottleSettings {
-	return {
-		freeFailures: envInt('PARETHERM_SIGNIN_FREE_FAILURES', 5, 1),
-		baseDelay_s: envInt('PARETHERM_SIGNIN_DELAY_S', 1, 1),
-		maxDelay_s: envInt('PARETHERM_SIGNIN_MAX_DELAY_S', 15 * 60, 1),
-		window_s: 24 * 3600
-	};
+	return { ...config().signIn, window_s: 24 * 3600 };
 }
 
 /** The wait imposed after the `failures`-th failure in the window (0 while failures are free). */
@@ -64,7 +52,7 @@ export type ThrottleStore = ConstructorParameters<typeof RateLimiterRedis>[0]['s
 
 export function createSignInThrottle(opts: { store?: ThrottleStore | null; settings?: ThrottleSettings; prefix?: string } = {}): SignInThrottle {
 	const settings = opts.settings ?? throttleSettingsFromEnv();
-	const prefix = opts.prefix ?? `${process.env.PARETHERM_QUEUE_PREFIX || 'paretherm'}:signin`;
+	const prefix = opts.prefix ?? `${config().queuePrefix}:signin`;
 	// Failures: a counter that never refuses by itself; the wait is a separate block below.
 	const failureOpts = { keyPrefix: `${prefix}:failures`, points: Number.MAX_SAFE_INTEGER, duration: settings.window_s };
 	const waitOpts = { keyPrefix: `${prefix}:wait`, points: 1, duration: 1 };

@@ -10,16 +10,15 @@ import sqlite3 from 'sqlite3';
 import fs from 'node:fs';
 import path from 'node:path';
 import { runMigrations } from './migrate';
+import { config, type Config } from '../config';
 
 export function dataDir(): string {
-	return path.resolve(process.env.PARETHERM_DATA_DIR ?? './data');
+	return config().dataDir;
 }
 
-export function databaseFile(): string {
-	return path.join(dataDir(), 'paretherm.sqlite');
+export function databaseFile(dir = dataDir()): string {
+	return path.join(dir, 'paretherm.sqlite');
 }
-
-fs.mkdirSync(dataDir(), { recursive: true });
 
 /**
  * Sequelize's SQLite dialect opens a separate connection for each transaction and sets no busy
@@ -36,20 +35,30 @@ class WaitingDatabase extends sqlite3.Database {
 }
 const dialectModule = { ...sqlite3, Database: WaitingDatabase };
 
-export const sequelize = new Sequelize({
-	dialect: 'sqlite',
-	dialectModule,
-	storage: databaseFile(),
-	logging: false,
-	// SQLite has one writer; a single pooled connection keeps transactions serialised.
-	pool: { max: 1, min: 0, idle: 10_000 },
-	retry: { max: 5, match: [/SQLITE_BUSY/] },
-	// Each transaction has its own connection. A DEFERRED one that reads and then writes fails at
-	// once with SQLITE_BUSY (no busy wait, and retrying the statement cannot help) when another
-	// connection committed in between — e.g. saving an input while a sweep stores chunks answered
-	// 500. IMMEDIATE takes the write lock at BEGIN, where the busy timeout does wait.
-	transactionType: Transaction.TYPES.IMMEDIATE
-});
+/** A Sequelize instance over the database file in `cfg.dataDir` (the folder is created if missing). */
+export function createDatabase(cfg: Pick<Config, 'dataDir'>): Sequelize {
+	fs.mkdirSync(cfg.dataDir, { recursive: true });
+	return new Sequelize({
+		dialect: 'sqlite',
+		dialectModule,
+		storage: databaseFile(cfg.dataDir),
+		logging: false,
+		// SQLite has one writer; a single pooled connection keeps transactions serialised.
+		pool: { max: 1, min: 0, idle: 10_000 },
+		retry: { max: 5, match: [/SQLITE_BUSY/] },
+		// Each transaction has its own connection. A DEFERRED one that reads and then writes fails at
+		// once with SQLITE_BUSY (no busy wait, and retrying the statement cannot help) when another
+		// connection committed in between — e.g. saving an input while a sweep stores chunks answered
+		// 500. IMMEDIATE takes the write lock at BEGIN, where the busy timeout does wait.
+		transactionType: Transaction.TYPES.IMMEDIATE
+	});
+}
+
+/**
+ * The process's database, from the configuration. The models bind to it when they are defined
+ * (Sequelize's `Model.init`), so it is made when this module is first imported.
+ */
+export const sequelize = createDatabase(config());
 
 let ready: Promise<void> | null = null;
 

@@ -10,6 +10,7 @@
  * file, then rename it over the gate) so a reader never sees half a number.
  */
 import fs from 'node:fs/promises';
+import { config, parseConfig, type Env } from '../config';
 
 export const CHUNK_GATE_ENV = 'PARETHERM_CHUNK_GATE';
 const POLL_MS = 50;
@@ -31,8 +32,8 @@ async function readGate(file: string): Promise<number> {
 }
 
 /** The gate file named by the environment, or null when the gate is off. */
-export function chunkGateFile(env: NodeJS.ProcessEnv = process.env): string | null {
-	return env[CHUNK_GATE_ENV]?.trim() || null;
+export function chunkGateFile(env?: Env): string | null {
+	return (env ? parseConfig(env) : config()).chunkGateFile;
 }
 
 /**

@@ -11,6 +11,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
+import { config } from '../config';
 
 export type CompiledEntry = 'sim-thread' | 'index';
 
@@ -46,14 +47,14 @@ function candidates(name: CompiledEntry): string[] {
 			if (path.basename(d) === 'build') list.push(path.join(d, 'worker', file));
 			list.push(path.join(d, 'build', 'worker', file));
 		}
-	list.push(path.join(process.env.PARETHERM_ROOT ?? process.cwd(), 'build', 'worker', file));
+	list.push(path.join(config().root ?? process.cwd(), 'build', 'worker', file));
 	return list;
 }
 
 /** The project folder (holding scripts/build-workers.mjs) when running from source. */
 function sourceRoot(): string | null {
 	const here = moduleDir();
-	for (const d of here ? ancestors(here) : [process.env.PARETHERM_ROOT ?? process.cwd()])
+	for (const d of here ? ancestors(here) : [config().root ?? process.cwd()])
 		if (fs.existsSync(path.join(d, 'scripts', 'build-workers.mjs')) && fs.existsSync(path.join(d, 'package.json'))) return d;
 	return null;
 }

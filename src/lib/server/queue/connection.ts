@@ -5,6 +5,7 @@
 import path from 'node:path';
 import { Redis, type RedisOptions } from 'ioredis';
 import { PrivateRedis, describeTarget, type RedisTarget } from './redis-server';
+import { config, parseConfig, type Env } from '../config';
 
 export { describeTarget, type RedisTarget };
 
@@ -14,9 +15,8 @@ export interface ResolvedRedis {
 	privateServer: PrivateRedis | null;
 }
 
-export function redisUrlFromEnv(env: NodeJS.ProcessEnv = process.env): string | null {
-	const url = env.REDIS_URL?.trim();
-	return url ? url : null;
+export function redisUrlFromEnv(env?: Env): string | null {
+	return (env ? parseConfig(env) : config()).redis.url;
 }
 
 /** REDIS_URL if set; otherwise start a private redis-server in the data folder. */
@@ -61,10 +61,9 @@ export function targetToUrl(target: RedisTarget): string {
 }
 
 /** Parse what `targetToUrl` produced (or any redis:// URL). */
-export function targetFromEnv(env: NodeJS.ProcessEnv = process.env): RedisTarget | null {
-	const socket = env.REDIS_SOCKET?.trim();
+export function targetFromEnv(env?: Env): RedisTarget | null {
+	const { socket, url } = (env ? parseConfig(env) : config()).redis;
 	if (socket) return { kind: 'socket', path: socket };
-	const url = redisUrlFromEnv(env);
 	if (!url) return null;
 	if (url.startsWith('unix://')) return { kind: 'socket', path: url.slice('unix://'.length) };
 	return { kind: 'url', url };

@@ -4,9 +4,10 @@
  * queue). Keep this module free of `$lib`/`$app`/`$env` imports: the worker process imports it
  * under tsx, outside the Vite build.
  */
+import { config } from '../config';
 
 /** Key prefix for every BullMQ key, so several Paretherm installs can share one Redis. */
-export const QUEUE_PREFIX = process.env.PARETHERM_QUEUE_PREFIX || 'paretherm';
+export const QUEUE_PREFIX = config().queuePrefix;
 
 /** The one queue that carries sweep work: grid-point chunks and front time-series jobs. */
 export const SWEEP_QUEUE = 'sweeps';
@@ -44,4 +45,4 @@ export function cancelledKey(sweepId: number, queueToken: string): string {
  * for tests.
  */
 export const JOB_ATTEMPTS = 3;
-export const JOB_BACKOFF_DELAY_MS = Number(process.env.PARETHERM_JOB_BACKOFF_MS) > 0 ? Number(process.env.PARETHERM_JOB_BACKOFF_MS) : 2_000;
+export const JOB_BACKOFF_DELAY_MS = config().jobBackoff_ms;

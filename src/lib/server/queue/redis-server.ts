@@ -18,6 +18,7 @@ import fs from 'node:fs';
 import net from 'node:net';
 import path from 'node:path';
 import { Redis } from 'ioredis';
+import { parseConfig } from '../config';
 
 export type RedisTarget = { kind: 'url'; url: string } | { kind: 'socket'; path: string } | { kind: 'tcp'; host: string; port: number };
 
@@ -42,7 +43,7 @@ export class RedisServerMissingError extends Error {
 
 /** Absolute path of the redis-server binary, or null. REDIS_SERVER_BIN wins over PATH. */
 export function findRedisServerBinary(env: NodeJS.ProcessEnv = process.env): string | null {
-	const explicit = env.REDIS_SERVER_BIN;
+	const explicit = parseConfig(env).redis.serverBin;
 	if (explicit) return isExecutable(explicit) ? path.resolve(explicit) : null;
 	const dirs = [...(env.PATH ?? '').split(path.delimiter), '/usr/bin', '/usr/sbin', '/usr/local/bin', '/opt/homebrew/bin'];
 	for (const dir of dirs) {

@@ -10,13 +10,14 @@ import os from 'node:os';
 import { MessageChannel } from 'node:worker_threads';
 import { Piscina } from 'piscina';
 import { compiledFile } from './compiled';
+import { config } from '../config';
 import type { PingResult, ThreadTask } from './sim-thread';
 
 type Body = ThreadTask extends infer T ? (T extends { kind: 'chunk' | 'series' } ? Omit<T, 'nice' | 'progress'> : never) : never;
 
 export function defaultThreadCount(): number {
-	const fromEnv = Number(process.env.PARETHERM_WORKER_THREADS);
-	if (Number.isInteger(fromEnv) && fromEnv > 0) return fromEnv;
+	const fromEnv = config().workerThreads;
+	if (fromEnv !== null) return fromEnv;
 	return typeof os.availableParallelism === 'function' ? os.availableParallelism() : os.cpus().length;
 }
 

@@ -12,6 +12,7 @@ import { fork, type ChildProcess } from 'node:child_process';
 import { compiledFile } from './compiled';
 import type { RedisTarget } from './connection';
 import { defaultThreadCount } from './thread-pool';
+import { config, parseConfig, type Env } from '../config';
 
 export interface WorkerProcessOptions {
 	target: RedisTarget;
@@ -35,12 +36,9 @@ export interface WorkerProcessHandle {
 	close(timeout_ms?: number): Promise<void>;
 }
 
-export function defaultWorkerNice(env: NodeJS.ProcessEnv = process.env): number {
-	const raw = env.PARETHERM_WORKER_NICE?.trim();
-	if (raw === undefined || raw === '') return 10;
-	const v = Number(raw);
-	if (!Number.isInteger(v) || v < 0 || v > 19) throw new Error(`PARETHERM_WORKER_NICE must be a whole number from 0 to 19 (got “${raw.slice(0, 20)}”).`);
-	return v;
+/** The web app's own worker child runs at nice 10 unless PARETHERM_WORKER_NICE says otherwise. */
+export function defaultWorkerNice(env?: Env): number {
+	return (env ? parseConfig(env) : config()).workerNice ?? 10;
 }
 
 function redisEnv(target: RedisTarget): Record<string, string | undefined> {

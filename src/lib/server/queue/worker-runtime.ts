@@ -14,6 +14,7 @@ import type { ChunkJobData, ChunkJobResult, ComputedPoint, JobProgress, SeriesJo
 import { JOB_FRONT_SERIES, JOB_SWEEP_CHUNK, QUEUE_PREFIX, SWEEP_QUEUE, cancelledKey } from './names';
 import { SimulationPool, defaultThreadCount } from './thread-pool';
 import { passChunkGate } from './chunk-gate';
+import { config } from '../config';
 
 export interface SweepWorkerOptions {
 	target: RedisTarget;
@@ -39,15 +40,10 @@ export interface SweepWorkerHandle {
 	close(timeout_ms?: number): Promise<void>;
 }
 
-function envInt(name: string): number | undefined {
-	const v = Number(process.env[name]);
-	return Number.isInteger(v) && v > 0 ? v : undefined;
-}
-
 /** Lock and stall timings; env overrides let the restart test run in seconds, not minutes. */
 export function lockSettings(opts: { lockDuration_ms?: number; stalledInterval_ms?: number } = {}) {
-	const lockDuration = opts.lockDuration_ms ?? envInt('PARETHERM_JOB_LOCK_MS') ?? 30_000;
-	const stalledInterval = opts.stalledInterval_ms ?? envInt('PARETHERM_STALLED_CHECK_MS') ?? Math.max(1_000, Math.round(lockDuration / 2));
+	const lockDuration = opts.lockDuration_ms ?? config().jobLock_ms ?? 30_000;
+	const stalledInterval = opts.stalledInterval_ms ?? config().stalledCheck_ms ?? Math.max(1_000, Math.round(lockDuration / 2));
 	return { lockDuration, stalledInterval };
 }
 
@@ -55,7 +51,7 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 	const log = opts.log ?? ((m: string) => console.log(`[paretherm worker] ${m}`));
 	const threads = opts.threads ?? defaultThreadCount();
 	const workerId = opts.workerId ?? `${os.hostname()}:${process.pid}`;
-	const nice = opts.nice ?? envInt('PARETHERM_WORKER_NICE') ?? 0;
+	const nice = opts.nice ?? config().workerNice ?? 0;
 	const pool = new SimulationPool(threads, { nice, log });
 	await pool.ready();
 	const connection = createRedisClient(opts.target);

@@ -15,25 +15,15 @@
 import { Op, fn, literal } from 'sequelize';
 import { Sweep } from '../db/models/index';
 import { SweepInputError } from './request';
+import { config } from '../config';
 
 export interface QueueCaps {
 	perUser: number;
 	perProgram: number;
 }
 
-function envCap(name: string, fallback: number): number {
-	const raw = process.env[name];
-	if (raw === undefined || raw.trim() === '') return fallback;
-	const v = Number(raw);
-	if (!Number.isInteger(v) || v < 1) throw new Error(`${name} must be a whole number of simulations, at least 1 (got “${raw}”).`);
-	return v;
-}
-
 export function queueCaps(): QueueCaps {
-	return {
-		perUser: envCap('PARETHERM_MAX_QUEUED_PER_USER', 50_000),
-		perProgram: envCap('PARETHERM_MAX_QUEUED_PER_PROGRAM', 100_000)
-	};
+	return { ...config().queueCaps };
 }
 
 const WAITING = ['queued', 'running'];

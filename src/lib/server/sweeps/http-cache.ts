@@ -12,12 +12,13 @@
 import crypto from 'node:crypto';
 import { LRUCache } from 'lru-cache';
 import type { Sweep } from '../db/models/index';
+import { config } from '../config';
 
 const PROCESS_TAG = crypto.randomBytes(4).toString('hex');
 
 /** Bodies of finished sweeps, bounded by total characters (≈ bytes for this JSON and CSV). */
 const bodies = new LRUCache<string, string>({
-	maxSize: (Number(process.env.PARETHERM_RESULT_CACHE_MB) || 64) * 1024 * 1024,
+	maxSize: config().resultCache_MB * 1024 * 1024,
 	maxEntrySize: 16 * 1024 * 1024,
 	sizeCalculation: (value, key) => value.length + key.length
 });

@@ -13,7 +13,8 @@
  * lower OS priority (PARETHERM_WORKER_NICE, default 10), so requests are answered first while it
  * computes; PARETHERM_WORKER_PROCESS=0 keeps it in this process's threads instead.
  *
- * Everything here uses relative imports and process.env, so scripts and tests run it under tsx.
+ * Everything here uses relative imports and reads settings through ../config.ts (process.env outside
+ * SvelteKit), so scripts and tests run it under tsx.
  */
 import { dataDir, ensureDb } from '../db/index';
 import { resolveRedis, describeTarget, type RedisTarget } from '../queue/connection';
@@ -24,6 +25,7 @@ import { startWorkerProcess } from '../queue/worker-process';
 import { activeQueue, recordProgress, setActiveQueue } from './registry';
 import { collectJob, handleJobFailed, reconcileSweeps } from './service';
 import { closeSeriesPool } from './results';
+import { config, parseConfig, type Env } from '../config';
 
 /** The app's own worker, in a child process or in this process. */
 export interface LocalWorker {
@@ -67,16 +69,13 @@ function setCurrent(p: Promise<SweepRuntime> | null): void {
 	holder.__parethermSweepRuntime = p;
 }
 
-export function inProcessWorkerWanted(env: NodeJS.ProcessEnv = process.env): boolean {
-	const flag = env.PARETHERM_IN_PROCESS_WORKER?.trim();
-	if (flag === '1' || flag === 'true') return true;
-	if (flag === '0' || flag === 'false') return false;
-	return !env.REDIS_URL?.trim();
+export function inProcessWorkerWanted(env?: Env): boolean {
+	const c = env ? parseConfig(env) : config();
+	return c.inProcessWorker ?? !c.redis.url;
 }
 
-export function workerProcessWanted(env: NodeJS.ProcessEnv = process.env): boolean {
-	const flag = env.PARETHERM_WORKER_PROCESS?.trim();
-	return !(flag === '0' || flag === 'false');
+export function workerProcessWanted(env?: Env): boolean {
+	return (env ? parseConfig(env) : config()).workerProcess;
 }
 
 const workerLog = (m: string) => console.log(`[paretherm worker] ${m}`);
@@ -127,7 +126,7 @@ async function start(opts: SweepRuntimeOptions): Promise<SweepRuntime> {
 	const { target, privateServer } = await resolveRedis({ dataDir: dataDir(), log });
 	if (!privateServer) log(`sweep queue on ${describeTarget(target)}`);
 	const queue = new SweepQueue(target);
-	const wait_ms = Number(process.env.PARETHERM_REDIS_WAIT_MS) || 20_000;
+	const wait_ms = config().redisWait_ms;
 	const reached = await Promise.race([
 		queue.ready().then(() => true),
 		new Promise<false>((r) => setTimeout(() => r(false), wait_ms).unref())
@@ -156,7 +155,7 @@ async function start(opts: SweepRuntimeOptions): Promise<SweepRuntime> {
 	if (report.sweeps > 0)
 		log(`reconciled ${report.sweeps} unfinished sweep(s): ${report.collected} chunk result(s) collected, ${report.requeued} job(s) re-queued`);
 
-	const intervalMs = opts.reconcileInterval_ms ?? (Number(process.env.PARETHERM_RECONCILE_MS) || 15_000);
+	const intervalMs = opts.reconcileInterval_ms ?? config().reconcile_ms;
 	let reconciling = false;
 	const timer = setInterval(() => {
 		if (reconciling) return;

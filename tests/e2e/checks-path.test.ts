@@ -2,7 +2,7 @@
  * The model-check path in headless chromium against the built app: an engineer uploads a measured
  * log through the form, sees it charted, is told clearly why a broken file was refused, runs a model
  * check and reads the overlay and its statistics; a viewer reads the check. No console errors on the
- * way. Screenshots go to docs/screenshots for reviewers.
+ * way. Screenshots go to docs/screenshots.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';

@@ -3,7 +3,7 @@
  * runtime (private redis-server, in-process worker): an engineer creates a scenario, queues a small
  * sweep, watches it reach 100 %, opens the recommended point and promotes it; an architect
  * comments and endorses it; the manager sees the decision. Each main page is saved as a
- * screenshot in docs/screenshots for reviewers.
+ * screenshot in docs/screenshots.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';

@@ -41,7 +41,7 @@ const evaluation = (baseline_s: number, points: EvaluatedPoint[], sc: ScenarioKe
 
 describe('calibrateScenario', () => {
 	it('should compute time saved as baseline minus strategy time', () => {
-		// engine.md §5: time saved = baseline − strategy.
+		// Definition (src/lib/engine/calibration.ts): time saved = baseline time − strategy time; common practice, no source.
 		const c = calibrateScenario(evaluation(3600, [pt(100, 3000), pt(50, 3700)]));
 		expect(c.points.map((p) => p.timeSaved_s)).toEqual([600, -100]);
 	});
@@ -62,7 +62,7 @@ describe('calibrateScenario', () => {
 	});
 
 	it('should flag when no strategy beats the baseline and recommend nothing', () => {
-		// engine.md §5 (baseline is the reference); common practice, no source.
+		// The baseline is the reference point (0 Wh, 0 s); common practice, no source.
 		const c = calibrateScenario(evaluation(3600, [pt(0, 3600), pt(100, 3700), pt(500, 3650)]));
 		expect(c.noStrategyBeatsBaseline).toBe(true);
 		expect(c.knee).toBeNull();
@@ -267,7 +267,7 @@ describe('fastestWithin', () => {
 	);
 
 	it('should return the most time saved within the energy budget', () => {
-		// User rule from engine.md §5 ("fastest within X kWh"); common practice, no source.
+		// User rule "fastest within X kWh": most time saved among points within the budget; common practice, no source.
 		expect(fastestWithin(c.front, 600)?.energy_Wh).toBe(500);
 		expect(fastestWithin(c.points, 600)?.energy_Wh).toBe(500); // infeasible 400 Wh ignored
 		expect(fastestWithin(c.front, 500)?.energy_Wh).toBe(500); // budget inclusive
@@ -328,7 +328,7 @@ describe('calibration table and exports', () => {
 	const table = calibrationTable(calibrations);
 
 	it('should build one row per scenario with the pick or the baseline', () => {
-		// engine.md §5: scenario axes → recommended lead time and set-point.
+		// One table row per scenario: its axes → recommended lead time and set-point; common practice, no source.
 		expect(table).toHaveLength(4);
 		expect(table[0]).toMatchObject({
 			leadTime_s: 1800,
@@ -349,7 +349,7 @@ describe('calibration table and exports', () => {
 	});
 
 	it('should apply a fastest-within rule to every row when asked', () => {
-		// User rule from engine.md §5; common practice, no source.
+		// User rule "fastest within X kWh"; common practice, no source.
 		const t = calibrationTable(calibrations, { kind: 'fastest-within', maxEnergy_Wh: 650 });
 		expect(t[0]).toMatchObject({ energy_Wh: 600, timeSaved_s: 1600, rule: 'fastest-within' });
 		expect(t[2]).toMatchObject({ leadTime_s: null, rule: 'baseline' }); // 1500 Wh is over budget
@@ -357,7 +357,7 @@ describe('calibration table and exports', () => {
 	});
 
 	it('should write the header with units and convert K→°C, s→min, Wh→kWh', () => {
-		// Units policy in engine.md ("convert °C, minutes, kWh only at the edges").
+		// Units policy: SI inside the engine, °C, minutes and kWh only at the edges (exports); common practice, no source.
 		const csv = calibrationCsv(table);
 		const lines = csv.split('\r\n');
 		expect(lines[0]).toBe(

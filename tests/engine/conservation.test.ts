@@ -29,7 +29,7 @@ describe('conservation over a full scenario (drive, pre-conditioning, dwell, cha
 	}
 
 	it('should add up the thermal energy by source', () => {
-		// Definition in issue 3: total = heater + chiller, split by pack (drive + dwell) and grid (charge).
+		// Definition (product's own): total = heater + chiller, split by pack (drive + dwell) and grid (charge).
 		const s = simulate(runs[0][1]).summary;
 		expect(s.thermalEnergyTotal_Wh).toBeCloseTo(s.heaterEnergyDrive_Wh + s.heaterEnergyCharge_Wh + s.chillerEnergyDrive_Wh + s.chillerEnergyCharge_Wh, 9);
 		expect(s.heaterEnergyDrive_Wh).toBeGreaterThan(0);

@@ -3,7 +3,7 @@ import { simulate, CONTROL_TOLERANCE, type LimitName } from '../../src/lib/engin
 import { input, soaked, nmc, C } from './helpers';
 
 describe('plating-limited charging controller', () => {
-	// Tolerances stated in issue 3: anode potential ≥ margin − 1 mV, voltage ≤ max + 1 mV, temperature ≤ max + 0.1 K.
+	// Tolerances the controller guarantees: anode potential ≥ margin − 1 mV, voltage ≤ max + 1 mV, temperature ≤ max + 0.1 K (product requirement; common practice, no source).
 	it('should state the tolerances it guarantees', () => {
 		expect(CONTROL_TOLERANCE).toEqual({ voltage_V: 1e-3, anode_V: 1e-3, temp_K: 0.1 });
 	});
@@ -15,7 +15,7 @@ describe('plating-limited charging controller', () => {
 		for (const soh of sohs)
 			for (const soc of socs) {
 				it(`should keep every limit at ${t} °C, SOH ${soh}, arrival SOC ${soc}`, () => {
-					// Limits from the cell parameters; tolerance from issue 3 (see above).
+					// Limits from the cell parameters; tolerances as stated above.
 					const s = simulate(input(soaked(t, { stateOfHealth: soh, arrivalSoc: soc, target: { soc: 0.9 }, timeCap_s: 2 * 3600 }))).summary;
 					const lim = nmc.limits;
 					expect(s.minAnodePotential_V).toBeGreaterThanOrEqual(lim.anodePotentialMargin_V - 1e-3);
@@ -27,7 +27,7 @@ describe('plating-limited charging controller', () => {
 			}
 
 	it('should move from charger current to anode potential to voltage at 25 °C', () => {
-		// engine.md §6 (common practice): at room temperature the charger limits first, plating risk in the
+		// Common practice, no source: at room temperature the charger limits first, plating risk in the
 		// middle of the charge, the voltage limit near the end.
 		const r = simulate(
 			input(
@@ -57,7 +57,7 @@ describe('plating-limited charging controller', () => {
 	});
 
 	it('should be limited by the anode potential most of the time at −20 °C', () => {
-		// engine.md §6 (common practice): the anode potential limit dominates at low temperature.
+		// Common practice, no source: the anode potential limit dominates at low temperature.
 		const s = simulate(input(soaked(-20, { arrivalSoc: 0.2 }))).summary;
 		const t = s.timeUnderLimit_s;
 		expect(t['anode-potential']).toBeGreaterThan(0.5 * (s.timeToTarget_s ?? 0));
@@ -66,7 +66,7 @@ describe('plating-limited charging controller', () => {
 
 describe('charging sanity checks (common practice)', () => {
 	it('should take at least twice as long to 80 % from a −20 °C cold-soaked pack as from a 25 °C one', () => {
-		// Issue 3 / engine.md §6, common practice, no source. Baseline policy (heater only during the charge).
+		// Common practice, no source. Baseline policy (heater only during the charge).
 		const cold = simulate(input(soaked(-20, { arrivalSoc: 0.2 }))).summary;
 		const warm = simulate(input(soaked(25, { arrivalSoc: 0.2 }))).summary;
 		expect(warm.reachedTarget).toBe(true);
@@ -74,7 +74,7 @@ describe('charging sanity checks (common practice)', () => {
 	});
 
 	it('should reach 80 % faster plating-limited than with the CC-CV reference for a warm pack', () => {
-		// engine.md §6, common practice: plating-limited charging beats a manufacturer-style CC-CV when warm.
+		// Common practice, no source: plating-limited charging beats a manufacturer-style CC-CV when warm.
 		const plating = simulate(input(soaked(25, { arrivalSoc: 0.2 }))).summary;
 		const cccv = simulate(input(soaked(25, { arrivalSoc: 0.2 }), null, { keepSeries: false, protocol: 'cccv' })).summary;
 		expect(cccv.reachedTarget).toBe(true);

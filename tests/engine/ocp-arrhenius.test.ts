@@ -76,7 +76,7 @@ describe('user OCP tables', () => {
 
 describe('Arrhenius temperature dependence', () => {
 	it('should give D(25 °C)/D(0 °C) ≈ 3.06 for Ea = 30.3 kJ/mol', () => {
-		// engine.md §6; Ea of graphite diffusion from Ecker et al., J. Electrochem. Soc. 162 (2015) A1836.
+		// Arrhenius law, k(T) = k_ref·exp(−Ea/R·(1/T − 1/T_ref)); Ea of graphite diffusion from Ecker et al., J. Electrochem. Soc. 162 (2015) A1836.
 		expect(arrhenius(30300, C(25), C(25)) / arrhenius(30300, C(0), C(25))).toBeCloseTo(3.06, 2);
 		expect(arrhenius(30300, C(25))).toBe(1);
 	});

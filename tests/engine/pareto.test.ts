@@ -97,7 +97,7 @@ describe('paretoFront', () => {
 	});
 
 	it('should exclude non-finite points and never let them dominate', () => {
-		// Engine convention (engine.md §5 via the brief): NaN/infinite = infeasible.
+		// Engine convention: a NaN or infinite objective marks the point infeasible; common practice, no source.
 		const p = pts([
 			[NaN, 100],
 			[-Infinity, 100],

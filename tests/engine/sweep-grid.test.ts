@@ -36,7 +36,7 @@ const errorsOf = (input: unknown): string[] => {
 
 describe('sweep definition validation', () => {
 	it('should accept a valid sweep and the exact range bounds typed in user units', () => {
-		// Ranges from the brief (ambient −40…55 °C, SOH 60…100 %, SOC 2…95 %,
+		// The product's input ranges (ambient −40…55 °C, SOH 60…100 %, SOC 2…95 %,
 		// lead time 0…120 min, set-point −30…60 °C); common practice, no source.
 		expect(parseSweepDefinition(valid()).ok).toBe(true);
 		const edges: SweepDefinition = {
@@ -52,7 +52,7 @@ describe('sweep definition validation', () => {
 	});
 
 	it('should report out-of-range values in °C, min and % with their path', () => {
-		// Product rule (style.md: "errors say what to change"); common practice, no source.
+		// Product rule: error messages say what to change; common practice, no source.
 		const errors = errorsOf({
 			...valid(),
 			ambients_K: [K(25), K(60)],
@@ -95,7 +95,7 @@ describe('sweep definition validation', () => {
 	});
 
 	it('should accept exactly MAX_GRID_POINTS and reject one axis value more with the size message', () => {
-		// Limit from the brief (20000); message wording from the brief.
+		// The product's limit of 20 000 simulations per sweep and its message.
 		const big: SweepDefinition = {
 			cellIds: ['c1', 'c2'],
 			packIds: ['p1'],

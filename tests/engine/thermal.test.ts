@@ -20,7 +20,7 @@ describe('lumped-capacitance cooling', () => {
 	});
 
 	it('should reproduce Incropera & DeWitt Example 5.1 (thermocouple junction)', () => {
-		// Incropera & DeWitt, Example 5.1 (values from memory, as in engine.md): h = 400 W/(m²K), ρ = 8500 kg/m³,
+		// Incropera & DeWitt, Example 5.1 (values from memory): h = 400 W/(m²K), ρ = 8500 kg/m³,
 		// c = 400 J/(kg·K); τ = 1 s gives D = 6hτ/(ρc) = 0.706 mm; from 25 °C in a 200 °C gas it reaches 199 °C after ≈ 5.2 s.
 		const h = 400;
 		const rho = 8500;

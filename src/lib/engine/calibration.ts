@@ -4,7 +4,7 @@
  * (least energy spent, most time saved), a recommended strategy, and the
  * calibration table a controls team loads (CSV and JSON).
  *
- * Definitions (engine.md §5):
+ * Definitions (the product's own; common practice, no source):
  * - timeSaved_s = baselineTimeToTarget_s − timeToTarget_s (negative = slower
  *   than the pack's own default thermal policy).
  * - energy_Wh = heater + chiller electrical energy attributable to the

@@ -2,7 +2,7 @@
  * A private `redis-server` child for installs without `REDIS_URL`.
  *
  * Why a real server: BullMQ's Lua scripts need cmsgpack/cjson/bit/struct and the CLIENT command,
- * which ioredis-mock lacks (see docs/design stack.md), so the queue always runs on real Redis.
+ * which ioredis-mock lacks, so the queue always runs on real Redis.
  * The child listens only on a unix socket in the data folder (or on 127.0.0.1 when the socket
  * path would be too long for the kernel's 108-byte limit), keeps an append-only file under
  * `<data>/redis` so queued sweeps survive a restart, and is restarted with back-off if it dies.

@@ -17,9 +17,10 @@ export function startRuntime(): Promise<void> {
 	started ??= (async () => {
 		startMailDispatcher(); // first: mail works even when the sweep runtime cannot start
 		const rt = await startSweepRuntime();
-		// A client of its own that fails fast instead of queueing commands while Redis is away,
-		// so a sign-in never waits on Redis (the throttle falls back to memory meanwhile).
-		const redis = createRedisClient(rt.target, { maxRetriesPerRequest: 1, enableOfflineQueue: false });
+		// A client of its own that fails fast instead of queueing commands while Redis is away, and
+		// gives up on a command after a second (a Redis that is stopped but still connected never
+		// answers), so a sign-in never waits on Redis: the throttle falls back to memory meanwhile.
+		const redis = createRedisClient(rt.target, { maxRetriesPerRequest: 1, enableOfflineQueue: false, commandTimeout: 1_000 });
 		redis.on('error', () => {});
 		useThrottleStore(redis);
 		process.once('sveltekit:shutdown' as never, () => {

@@ -18,7 +18,12 @@ process.env.BODY_SIZE_LIMIT ??= '8M';
 // Form actions compare the request's Origin with this; set ORIGIN to the public URL behind a proxy.
 process.env.ORIGIN ??= `http://localhost:${process.env.PORT}`;
 console.log(`Paretherm: open ${process.env.ORIGIN}`);
-const { server } = await import('../build/index.js');
+const { server } = await import('../build/index.js').catch((e) => {
+	// A setting the configuration refuses: say which and what is allowed, without a stack trace.
+	if (e?.name !== 'ConfigError') throw e;
+	console.error(`Paretherm cannot start; fix these settings:\n${e.message}`);
+	process.exit(2);
+});
 
 const httpServer = server?.server;
 if (!(httpServer instanceof http.Server)) throw new Error('The built server exposes no HTTP server; check the @sveltejs/adapter-node version.');

@@ -7,6 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import path from 'node:path';
 import { ConfigError, config, parseConfig, useConfigSource } from '../../src/lib/server/config';
+import { startApp } from '../helpers/app';
 
 function refusal(env: Record<string, string>): ConfigError {
 	try {
@@ -112,4 +113,13 @@ describe('config()', () => {
 			useConfigSource(process.env);
 		}
 	});
+});
+
+describe('starting the app', () => {
+	it('should stop at start with the refused setting named, serving nothing', async () => {
+		// The built app (npm run build), as `npm start` runs it.
+		await expect(startApp({ seed: false, env: { PARETHERM_WORKER_NICE: 'low', PARETHERM_NO_RUNTIME: '1' } })).rejects.toThrow(
+			/App exited early:[\s\S]*fix these settings:\nPARETHERM_WORKER_NICE must be a whole number from 0 to 19 \(got “low”\)/
+		);
+	}, 60_000);
 });

@@ -17,8 +17,10 @@ export function startRuntime(): Promise<void> {
 		startMailDispatcher(); // first: mail works even when the sweep runtime cannot start
 		const rt = await startSweepRuntime();
 		// A client of its own that fails fast instead of queueing commands while Redis is away,
-		// so a sign-in never waits on Redis (the throttle falls back to memory meanwhile).
-		const redis = createRedisClient(rt.target, { maxRetriesPerRequest: 1, enableOfflineQueue: false });
+		// so a sign-in never waits on Redis (the throttle falls back to memory meanwhile). A Redis
+		// that is connected but frozen (stopped, swapping) never answers: the command timeout
+		// turns that into an error too, or a sign-in would hang until the client gives up.
+		const redis = createRedisClient(rt.target, { maxRetriesPerRequest: 1, enableOfflineQueue: false, commandTimeout: 1_000 });
 		redis.on('error', () => {});
 		useThrottleStore(redis);
 		process.once('sveltekit:shutdown' as never, () => {

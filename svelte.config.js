@@ -33,8 +33,6 @@ const config = {
 				cfg.compilerOptions.paths ??= {};
 				// odex ships no type declarations; ours live in src/types.
 				cfg.compilerOptions.paths['odex'] = ['../src/types/odex.d.ts'];
-				// jstat ships no type declarations either.
-				cfg.compilerOptions.paths['jstat'] = ['../src/types/jstat.d.ts'];
 				return cfg;
 			}
 		}

@@ -47,6 +47,25 @@ export function latinHypercube(n: number, k: number, rng: Rng): number[][] {
 	return rows;
 }
 
+/**
+ * Rows A, B, A_B^(1), …, A_B^(k) (N·(k + 2) rows of k values) of the sensitivity design, A and B
+ * being the first and last k columns of one N × 2k Latin hypercube.
+ */
+export function saltelliRows(n: number, k: number, rng: Rng): number[][] {
+	const AB = latinHypercube(n, 2 * k, rng);
+	const A = AB.map((r) => r.slice(0, k));
+	const B = AB.map((r) => r.slice(k));
+	const rows = [...A, ...B];
+	for (let i = 0; i < k; i++) {
+		for (let j = 0; j < n; j++) {
+			const r = A[j].slice();
+			r[i] = B[j][i];
+			rows.push(r);
+		}
+	}
+	return rows;
+}
+
 /** The sample matrices of a study, in the unit cube, columns in `inputs` order. */
 export interface UnitDesign {
 	inputs: UncertainInput[];
@@ -63,18 +82,7 @@ export function unitDesign(u: UncertaintySet): UnitDesign {
 	const n = u.samples;
 	const rng = seededRng(u.seed);
 	if (!u.sensitivity) return { inputs, samples: n, rows: latinHypercube(n, k, rng), sensitivity: false };
-	const AB = latinHypercube(n, 2 * k, rng);
-	const A = AB.map((r) => r.slice(0, k));
-	const B = AB.map((r) => r.slice(k));
-	const rows = [...A, ...B];
-	for (let i = 0; i < k; i++) {
-		for (let j = 0; j < n; j++) {
-			const r = A[j].slice();
-			r[i] = B[j][i];
-			rows.push(r);
-		}
-	}
-	return { inputs, samples: n, rows, sensitivity: true };
+	return { inputs, samples: n, rows: saltelliRows(n, k, rng), sensitivity: true };
 }
 
 /** Values of every uncertain input for one design row (inputs not in the set are 0: nominal). */

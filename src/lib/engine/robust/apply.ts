@@ -101,10 +101,10 @@ export function uncertaintyScenarioIssues(u: UncertaintySet, base: ScenarioBase)
 	}
 	const init = range('initialPackTempOffset_K');
 	const t0 = s.initialPackTemp_K ?? s.ambient_K;
-	if (t0 + init.lower + amb.lower < 273.15 - 40 || t0 + init.upper + amb.upper >= base.cell.limits.maxTemp_K) {
+	if (u.inputs.initialPackTempOffset_K && (t0 + init.lower + amb.lower < 273.15 - 40 || t0 + init.upper + amb.upper >= base.cell.limits.maxTemp_K)) {
 		out.push({
-			field: 'uncertainty.inputs.initialPackTempOffset_K',
-			message: `the initial pack temperature offset takes the pack from ${fmt.celsius(t0)} outside −40 °C … ${fmt.celsius(base.cell.limits.maxTemp_K)}`
+			field: t0 + init.lower + amb.lower < 273.15 - 40 ? 'uncertainty.inputs.initialPackTempOffset_K.lower' : 'uncertainty.inputs.initialPackTempOffset_K.upper',
+			message: `the initial pack temperature offset (with the ambient error) takes the pack from ${fmt.celsius(t0)} outside −40 °C … ${fmt.celsius(base.cell.limits.maxTemp_K)}`
 		});
 	}
 	const arr = range('arrivalTimeError_s');

@@ -184,6 +184,25 @@ describe('robust front', () => {
 		expect(f.knee).toEqual({ strategyIndex: 1, method: 'kneedle' });
 	});
 
+	it('sets the nominal knee beside the robust one: "does the nominal choice survive?"', () => {
+		// The same five strategies as paired runs: a constant baseline and strategy time = baseline − time saved.
+		const runs = {
+			baseline: [0, 1, 2].map(() => ({ timeToTarget_s: 3000, reachedTarget: true, driveEnergy_Wh: 0, chargeEnergy_Wh: 0, minAnodePotential_V: 0.02 })),
+			strategies: p.map((q) =>
+				q.timeSaved_s.map((t, j) => ({ timeToTarget_s: 3000 - t, reachedTarget: true, driveEnergy_Wh: q.energy_Wh[j], chargeEnergy_Wh: 0, minAnodePotential_V: 0.02 }))
+			)
+		};
+		const design = { inputs: [], samples: 3, rows: [[], [], []], sensitivity: false };
+		// Nominally strategy 4 (600 s for 250 Wh in two samples of three) would be the pick.
+		const a = analyseScenario(st, runs, design, { nominalKnee: 4 });
+		expect(a.front.knee?.strategyIndex).toBe(1);
+		expect(a.nominal).toMatchObject({ strategyIndex: 4, onRobustFront: false, isRobustKnee: false });
+		expect(a.nominal?.lowQuantileShortfall_s).toBeCloseTo(400 - 160, 9);
+		expect(a.nominal?.robustness.probWorseThanBaseline).toBe(0);
+		expect(analyseScenario(st, runs, design, { nominalKnee: 1 }).nominal).toMatchObject({ onRobustFront: true, isRobustKnee: true, lowQuantileShortfall_s: 0 });
+		expect(analyseScenario(st, runs, design).nominal).toBeNull();
+	});
+
 	it('refuses quantile levels outside [0, 1]', () => {
 		expect(() => robustFront(st, p, { timeQuantile: 1.2 })).toThrow(/time quantile/);
 	});

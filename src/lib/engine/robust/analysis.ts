@@ -21,6 +21,19 @@ export interface ScenarioRobustness {
 	samples: number;
 	strategies: StrategyRobustness[];
 	front: RobustFront;
+	/**
+	 * Does the nominal choice survive? The nominal knee's robustness beside the robust knee: whether
+	 * it is on the robust front, whether it is the robust knee, and the time saved it gives up at the
+	 * low quantile against the robust knee (> 0: the robust knee saves more in the bad cases).
+	 * Null when no nominal knee was given.
+	 */
+	nominal: {
+		strategyIndex: number;
+		robustness: StrategyRobustness;
+		onRobustFront: boolean;
+		isRobustKnee: boolean;
+		lowQuantileShortfall_s: number | null;
+	} | null;
 	/** Sensitivity of time saved and energy per input, for the strategies asked for (keyed by strategy index). */
 	sensitivity: Record<number, { inputs: UncertainInput[]; timeSaved_s: SensitivityIndex[]; energy_Wh: SensitivityIndex[] }>;
 }
@@ -31,6 +44,8 @@ export interface AnalysisOptions extends RobustFrontOptions {
 	/** Strategy indices to compute sensitivity indices for (default: the robust front's knee, if any). */
 	sensitivityFor?: number[];
 	sensitivityOptions?: SensitivityOptions;
+	/** Index of the knee of the nominal front (from the nominal sweep), to set beside the robust one. */
+	nominalKnee?: number | null;
 }
 
 /** The independent rows (A, and B with a sensitivity design) of paired samples over all design rows. */
@@ -69,5 +84,18 @@ export function analyseScenario(strategies: readonly Strategy[], runs: PairedRun
 			};
 		}
 	}
-	return { samples: m, strategies: stats, front, sensitivity };
+	let nominal: ScenarioRobustness['nominal'] = null;
+	const nk = options.nominalKnee;
+	if (nk !== undefined && nk !== null) {
+		if (!(Number.isInteger(nk) && nk >= 0 && nk < strategies.length)) throw new RangeError(`No strategy ${nk} for the nominal knee.`);
+		const rk = front.knee?.strategyIndex;
+		nominal = {
+			strategyIndex: nk,
+			robustness: stats[nk],
+			onRobustFront: front.front.includes(nk),
+			isRobustKnee: rk === nk,
+			lowQuantileShortfall_s: rk === undefined ? null : front.points[rk].timeSaved_s - front.points[nk].timeSaved_s
+		};
+	}
+	return { samples: m, strategies: stats, front, nominal, sensitivity };
 }

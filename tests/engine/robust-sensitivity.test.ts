@@ -44,6 +44,14 @@ describe('sensitivity indices (Saltelli 2010 first order, Jansen 1999 total) on 
 		expect(within(published, ci), `${_name}: published ${published}, interval [${ci[0].toFixed(4)}, ${ci[1].toFixed(4)}], estimate ${(kind === 'firstOrder' ? idx[i].firstOrder : idx[i].total).toFixed(4)}`).toBe(true);
 	});
 
+	it('indices do not change when a constant is added to the output (variance-based indices are shift invariant by definition)', () => {
+		const shifted = sobolIndices(outputs.map((y) => y + 1e4), N, { bootstrap: 400, confidence: 0.99, seed: 1 });
+		shifted.forEach((s, i) => {
+			expect(s.firstOrder).toBeCloseTo(idx[i].firstOrder, 6);
+			expect(s.total).toBeCloseTo(idx[i].total, 6);
+		});
+	});
+
 	it('intervals are narrow enough to tell the inputs apart (width < 0.1 at N = 8192)', () => {
 		for (const s of idx) {
 			expect(s.firstOrderCi[1] - s.firstOrderCi[0]).toBeLessThan(0.1);

@@ -12,7 +12,7 @@
  */
 import os from 'node:os';
 import { demoCells, demoPack, exampleScenario, expandGrid, REFERENCE_SWEEP_AXES, type Strategy } from '../src/lib/engine/index';
-import { runPairedStudy, sampleValues, validateUncertaintySet } from '../src/lib/engine/robust/index';
+import { robustRunTimeEstimate_s, robustTaskCount, runPairedStudy, sampleValues, validateUncertaintySet } from '../src/lib/engine/robust/index';
 
 const args = process.argv.slice(2);
 const flag = (name: string, dflt: number) => Math.max(1, Number(args.find((a) => a.startsWith(`--${name}=`))?.split('=')[1] ?? dflt) || dflt);
@@ -50,8 +50,8 @@ const runs = runPairedStudy(base, strategies, u, samples);
 const wall_s = (performance.now() - t0) / 1000;
 const sims = samples.length * (strategies.length + 1);
 const perSim_s = wall_s / sims;
-const fullSims = FULL_SAMPLES * (FULL_STRATEGIES + 1);
-const projected_s = (fullSims * perSim_s) / THREADS;
+const fullSims = robustTaskCount(1, FULL_STRATEGIES, FULL_SAMPLES);
+const projected_s = robustRunTimeEstimate_s(fullSims, perSim_s, THREADS);
 if (runs.baseline.length !== samples.length) throw new Error('robust bench: missing baseline runs');
 
 console.log(`\nRobust study — ${os.cpus().length} CPU cores, load ${os.loadavg().map((v) => v.toFixed(2)).join(', ')}`);

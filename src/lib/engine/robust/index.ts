@@ -11,3 +11,4 @@ export * from './sobol';
 export * from './apply';
 export * from './front';
 export * from './analysis';
+export * from './plan';

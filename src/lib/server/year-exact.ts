@@ -122,6 +122,10 @@ function view(run: YearExactRun): ExactRunView {
 	};
 }
 
+export async function evaluationInProgram(programId: number, evaluationId: number): Promise<boolean> {
+	return (await YearEvaluation.count({ where: { id: evaluationId, program_id: programId } })) > 0;
+}
+
 /** The evaluation's latest exact run, or null. */
 export async function latestExactRun(evaluationId: number): Promise<ExactRunView | null> {
 	const run = await YearExactRun.findOne({ where: { evaluation_id: evaluationId }, order: [['id', 'DESC']] });

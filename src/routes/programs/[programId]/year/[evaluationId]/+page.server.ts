@@ -3,7 +3,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { roleCan } from '$lib/server/auth/roles';
 import { getEvaluation, YearError } from '$lib/server/year';
-import { cancelExactRun, latestExactRun, startExactRun } from '$lib/server/year-exact';
+import { cancelExactRun, evaluationInProgram, latestExactRun, startExactRun } from '$lib/server/year-exact';
 
 export const load: PageServerLoad = async ({ locals, params }) => {
 	const { program, role } = await requireProgramRole(locals, params.programId, 'read');
@@ -12,6 +12,13 @@ export const load: PageServerLoad = async ({ locals, params }) => {
 	if (!evaluation) error(404, `No evaluation with id ${id} in this program.`);
 	return { evaluation, exact: await latestExactRun(id), canRunExact: role === 'admin' || roleCan(role, 'edit') };
 };
+
+/** The evaluation must be this program's (404 otherwise, before anything else is read). */
+async function ownEvaluation(programId: number, raw: string): Promise<number> {
+	const id = parseId(raw, 'evaluation');
+	if (!(await evaluationInProgram(programId, id))) error(404, `No evaluation with id ${id} in this program.`);
+	return id;
+}
 
 /** The form names what it asks for, so a stray post changes nothing. */
 function wantsExact(form: FormData): boolean {
@@ -22,9 +29,9 @@ export const actions: Actions = {
 	/** Starts the exact run: every sampled charge simulated in the background, then the lookup's error. */
 	exact: async ({ locals, params, request }) => {
 		const { user, program } = await requireProgramRole(locals, params.programId, 'edit');
+		const id = await ownEvaluation(program.id, params.evaluationId);
 		const form = await request.formData();
 		if (!wantsExact(form)) return fail(400, { action: 'exact', field: 'mode', message: 'Say which run to start: the form sends mode “exact”.', values: {} });
-		const id = parseId(params.evaluationId, 'evaluation');
 		try {
 			await startExactRun(program.id, id, user.id);
 		} catch (e) {
@@ -36,9 +43,9 @@ export const actions: Actions = {
 	/** Cancels the running exact run; results that arrive later are discarded. */
 	cancelExact: async ({ locals, params, request }) => {
 		const { program } = await requireProgramRole(locals, params.programId, 'edit');
+		const id = await ownEvaluation(program.id, params.evaluationId);
 		const form = await request.formData();
 		if (!wantsExact(form)) return fail(400, { action: 'cancelExact', field: 'mode', message: 'Say which run to cancel: the form sends mode “exact”.', values: {} });
-		const id = parseId(params.evaluationId, 'evaluation');
 		try {
 			if (!(await cancelExactRun(program.id, id)))
 				return fail(409, { action: 'cancelExact', field: 'mode', message: 'This evaluation has no exact run in progress to cancel.', values: {} });

@@ -63,6 +63,9 @@ describe('uploads and model checks in the browser', () => {
 		await shot('11-uploaded-log');
 
 		await page.goto(`${programUrl}/checks`);
+		// The log was made with the demo NMC pouch: pick its newest version by name, not by list position.
+		const nmc = await page.getByLabel('Cell parameter set version').locator('option', { hasText: demoNmcPouch.name }).first().getAttribute('value');
+		await page.getByLabel('Cell parameter set version').selectOption(nmc!);
 		await page.getByLabel('Initial state of charge (%)').fill('15');
 		await page.getByLabel('Title (optional)').fill('Bench 3 against the demo NMC cell');
 		await page.getByRole('button', { name: 'Run check' }).click();

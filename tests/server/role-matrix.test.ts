@@ -72,6 +72,8 @@ const RULES: Record<string, Rule> = {
 	'POST /programs/[programId]/year?/evaluate': 'comment',
 	'GET /programs/[programId]/year/[evaluationId]': 'member',
 	'GET /programs/[programId]/year/[evaluationId]/export': 'member',
+	'POST /programs/[programId]/year/[evaluationId]?/exact': 'edit',
+	'POST /programs/[programId]/year/[evaluationId]?/cancelExact': 'edit',
 	'GET /programs/[programId]/sweeps': 'member',
 	'GET /programs/[programId]/sweeps/new': 'edit',
 	'POST /programs/[programId]/sweeps/new?/default': 'edit',

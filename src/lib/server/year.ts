@@ -231,7 +231,7 @@ export async function sweepNodes(sweep: Sweep, cellId: string, packId: string): 
 			table: !baselineOk
 				? null
 				: knee
-					? { leadTime_s: knee.lead_time_s, setpoint_K: knee.coolant_setpoint_K, timeSaved_s: knee.time_saved_s ?? NaN, energy_Wh: knee.energy_Wh ?? NaN }
+					? { leadTime_s: knee.lead_time_s, setpoint_K: knee.coolant_setpoint_K, heaterPowerCap_W: knee.heater_power_cap_W, timeSaved_s: knee.time_saved_s ?? NaN, energy_Wh: knee.energy_Wh ?? NaN }
 					: { leadTime_s: null, setpoint_K: null, timeSaved_s: 0, energy_Wh: 0 },
 			strategies: pts.map((p) => ({
 				leadTime_s: p.lead_time_s ?? NaN,

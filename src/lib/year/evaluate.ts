@@ -60,7 +60,7 @@ export interface SweepNode {
 	/** Null when the baseline did not reach the target. */
 	baselineTime_s: number | null;
 	/** The calibration table's row: null lead time = keep the default policy (0 s, 0 Wh). */
-	table: { leadTime_s: number | null; setpoint_K: number | null; timeSaved_s: number; energy_Wh: number } | null;
+	table: { leadTime_s: number | null; setpoint_K: number | null; heaterPowerCap_W?: number | null; timeSaved_s: number; energy_Wh: number } | null;
 	strategies: NodeStrategy[];
 }
 

@@ -55,6 +55,26 @@ export interface ChunkJobResult {
 	elapsed_ms: number;
 }
 
+/** A chunk of an exact year-of-use run: the same simulations as a sweep chunk, for one run. */
+export interface YearChunkJobData {
+	runId: number;
+	queueToken: string;
+	chunkIndex: number;
+	tasks: ChunkTask[];
+	scenarios: Record<string, ScenarioInputs>;
+	strategies: Record<string, StrategyInput>;
+}
+
+export interface YearChunkJobResult {
+	runId: number;
+	chunkIndex: number;
+	cancelled: boolean;
+	points: ComputedPoint[];
+	worker: string;
+	attempt: number;
+	elapsed_ms: number;
+}
+
 export interface SeriesTask {
 	pointId: number;
 	strategyIndex: number | null;

@@ -18,7 +18,10 @@ export const JOB_SWEEP_CHUNK = 'sweep-chunk';
 /** Re-simulate the Pareto-front points of one scenario with `keepSeries` once the front is known. */
 export const JOB_FRONT_SERIES = 'front-series';
 
-export type SweepJobName = typeof JOB_SWEEP_CHUNK | typeof JOB_FRONT_SERIES;
+/** Simulate a chunk of the charges of a year-of-use evaluation's exact run; returns their summaries. */
+export const JOB_YEAR_CHUNK = 'year-chunk';
+
+export type SweepJobName = typeof JOB_SWEEP_CHUNK | typeof JOB_FRONT_SERIES | typeof JOB_YEAR_CHUNK;
 
 /**
  * Deterministic job ids make enqueueing idempotent: adding a job whose id already exists is a
@@ -32,6 +35,18 @@ export function chunkJobId(sweepId: number, queueToken: string, chunkIndex: numb
 
 export function seriesJobId(sweepId: number, queueToken: string, scenarioIndex: number): string {
 	return `sweep-${sweepId}-${queueToken}-series-${scenarioIndex}`;
+}
+
+/** Job ids of exact year-of-use runs start with this, so the web process knows where a result belongs. */
+export const YEAR_JOB_PREFIX = 'year-';
+
+export function yearChunkJobId(runId: number, queueToken: string, chunkIndex: number): string {
+	return `${YEAR_JOB_PREFIX}${runId}-${queueToken}-chunk-${chunkIndex}`;
+}
+
+/** Plain Redis key a worker checks before starting a chunk of an exact run, so a cancelled run stops quickly. */
+export function yearCancelledKey(runId: number, queueToken: string): string {
+	return `${QUEUE_PREFIX}:cancelled:year-${runId}-${queueToken}`;
 }
 
 /** Plain Redis key a worker checks before starting a chunk, so a cancelled sweep stops quickly. */

@@ -6,17 +6,20 @@
 import { Queue, QueueEvents, type Job, type JobsOptions } from 'bullmq';
 import type { Redis } from 'ioredis';
 import { createRedisClient, type RedisTarget } from './connection';
-import type { ChunkJobData, JobProgress, SeriesJobData } from './jobs';
+import type { ChunkJobData, JobProgress, SeriesJobData, YearChunkJobData } from './jobs';
 import {
 	JOB_ATTEMPTS,
 	JOB_BACKOFF_DELAY_MS,
 	JOB_FRONT_SERIES,
 	JOB_SWEEP_CHUNK,
+	JOB_YEAR_CHUNK,
 	QUEUE_PREFIX,
 	SWEEP_QUEUE,
 	cancelledKey,
 	chunkJobId,
-	seriesJobId
+	seriesJobId,
+	yearCancelledKey,
+	yearChunkJobId
 } from './names';
 
 const JOB_OPTIONS: JobsOptions = {
@@ -90,6 +93,19 @@ export class SweepQueue {
 					opts: { ...JOB_OPTIONS, jobId: chunkJobId(data.sweepId, data.queueToken, data.chunkIndex), ...(priority ? { priority } : {}) }
 				}))
 			);
+	}
+
+	/** Chunks of an exact year-of-use run (ids already queued are left as they are). */
+	async addYearChunks(chunks: YearChunkJobData[]): Promise<void> {
+		for (let i = 0; i < chunks.length; i += 500)
+			await this.queue.addBulk(
+				chunks.slice(i, i + 500).map((data) => ({ name: JOB_YEAR_CHUNK, data, opts: { ...JOB_OPTIONS, jobId: yearChunkJobId(data.runId, data.queueToken, data.chunkIndex) } }))
+			);
+	}
+
+	/** Tells workers to skip an exact run's remaining chunks. */
+	async markYearCancelled(runId: number, queueToken: string): Promise<void> {
+		await this.client.set(yearCancelledKey(runId, queueToken), '1', 'EX', 7 * 24 * 3600);
 	}
 
 	async addSeries(data: SeriesJobData): Promise<string> {

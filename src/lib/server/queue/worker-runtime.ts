@@ -10,8 +10,8 @@ import os from 'node:os';
 import { WaitingError, Worker, type Job } from 'bullmq';
 import type { Redis } from 'ioredis';
 import { createRedisClient, type RedisTarget } from './connection';
-import type { ChunkJobData, ChunkJobResult, ComputedPoint, JobProgress, SeriesJobData, SeriesJobResult } from './jobs';
-import { JOB_FRONT_SERIES, JOB_SWEEP_CHUNK, QUEUE_PREFIX, SWEEP_QUEUE, cancelledKey } from './names';
+import type { ChunkJobData, ChunkJobResult, ComputedPoint, JobProgress, SeriesJobData, SeriesJobResult, YearChunkJobData, YearChunkJobResult } from './jobs';
+import { JOB_FRONT_SERIES, JOB_SWEEP_CHUNK, JOB_YEAR_CHUNK, QUEUE_PREFIX, SWEEP_QUEUE, cancelledKey, yearCancelledKey } from './names';
 import { SimulationPool, defaultThreadCount } from './thread-pool';
 import { passChunkGate } from './chunk-gate';
 import { config } from '../config';
@@ -61,7 +61,7 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 	const isCancelled = async (redis: Redis, sweepId: number, token: string) => (await redis.exists(cancelledKey(sweepId, token))) === 1;
 
 	let closing = false;
-	const processor = async (job: Job, token?: string): Promise<ChunkJobResult | SeriesJobResult> => {
+	const processor = async (job: Job, token?: string): Promise<ChunkJobResult | SeriesJobResult | YearChunkJobResult> => {
 		let t0 = Date.now();
 		const redis = (await worker.client) as unknown as Redis;
 		// Progress is reported as {done,total}; throttled so a fast chunk does not flood Redis.
@@ -89,6 +89,24 @@ export async function startSweepWorker(opts: SweepWorkerOptions): Promise<SweepW
 			const elapsed_ms = Date.now() - t0;
 			log(`sweep ${data.sweepId} chunk ${data.chunkIndex}: ${points.length} simulations in ${elapsed_ms} ms (attempt ${job.attemptsMade + 1})`);
 			return { sweepId: data.sweepId, chunkIndex: data.chunkIndex, cancelled: false, points, worker: workerId, attempt: job.attemptsMade + 1, elapsed_ms };
+		}
+		if (job.name === JOB_YEAR_CHUNK) {
+			const data = job.data as YearChunkJobData;
+			// The same gate as sweep chunks, so tests can hold an exact run mid-way.
+			const gate = await passChunkGate(data.chunkIndex, () => closing, () => log(`year run ${data.runId} chunk ${data.chunkIndex}: held by the chunk gate`));
+			if (gate === 'stopped') {
+				await job.moveToWait(token);
+				throw new WaitingError();
+			}
+			t0 = Date.now();
+			const base = { runId: data.runId, chunkIndex: data.chunkIndex, worker: workerId, attempt: job.attemptsMade + 1 };
+			if ((await redis.exists(yearCancelledKey(data.runId, data.queueToken))) === 1) return { ...base, cancelled: true, points: [], elapsed_ms: 0 };
+			const chunk: ChunkJobData = { sweepId: data.runId, queueToken: data.queueToken, chunkIndex: data.chunkIndex, tasks: data.tasks, scenarios: data.scenarios, strategies: data.strategies };
+			const points = await pool.run<ComputedPoint[]>({ kind: 'chunk', data: chunk }, progress);
+			progress(points.length, points.length);
+			const elapsed_ms = Date.now() - t0;
+			log(`year run ${data.runId} chunk ${data.chunkIndex}: ${points.length} simulations in ${elapsed_ms} ms (attempt ${job.attemptsMade + 1})`);
+			return { ...base, cancelled: false, points, elapsed_ms };
 		}
 		if (job.name === JOB_FRONT_SERIES) {
 			const data = job.data as SeriesJobData;

@@ -26,6 +26,7 @@ import { activeQueue, recordProgress, setActiveQueue } from './registry';
 import { collectJob, handleJobFailed, reconcileSweeps } from './service';
 import { closeSeriesPool } from './results';
 import { config, parseConfig, type Env } from '../config';
+import { collectYearJob, handleYearJobFailed, isYearJob, reconcileYearRuns } from '../year-exact';
 
 /** The app's own worker, in a child process or in this process. */
 export interface LocalWorker {
@@ -145,8 +146,9 @@ async function start(opts: SweepRuntimeOptions): Promise<SweepRuntime> {
 	// Events may arrive in any order and more than once; every handler below is idempotent.
 	const safely = (what: string, p: Promise<unknown>) => p.catch((e) => log(`${what}: ${(e as Error).message}`));
 	await queue.listen({
-		onCompleted: (jobId) => void safely(`storing the result of ${jobId}`, collectJob(queue, jobId)),
-		onFailed: (jobId, reason) => void safely(`handling the failure of ${jobId}`, handleJobFailed(queue, jobId, reason)),
+		onCompleted: (jobId) => void safely(`storing the result of ${jobId}`, isYearJob(jobId) ? collectYearJob(queue, jobId) : collectJob(queue, jobId)),
+		onFailed: (jobId, reason) =>
+			void safely(`handling the failure of ${jobId}`, isYearJob(jobId) ? handleYearJobFailed(queue, jobId, reason) : handleJobFailed(queue, jobId, reason)),
 		onProgress: (jobId, p) => recordProgress(jobId, p)
 	});
 	setActiveQueue(queue);
@@ -154,13 +156,16 @@ async function start(opts: SweepRuntimeOptions): Promise<SweepRuntime> {
 	const report = await reconcileSweeps(queue);
 	if (report.sweeps > 0)
 		log(`reconciled ${report.sweeps} unfinished sweep(s): ${report.collected} chunk result(s) collected, ${report.requeued} job(s) re-queued`);
+	const years = await reconcileYearRuns(queue);
+	if (years.runs > 0)
+		log(`reconciled ${years.runs} unfinished exact year run(s): ${years.collected} chunk result(s) collected, ${years.requeued} job(s) re-queued`);
 
 	const intervalMs = opts.reconcileInterval_ms ?? config().reconcile_ms;
 	let reconciling = false;
 	const timer = setInterval(() => {
 		if (reconciling) return;
 		reconciling = true;
-		safely('periodic reconciliation', reconcileSweeps(queue)).finally(() => (reconciling = false));
+		safely('periodic reconciliation', reconcileSweeps(queue).then(() => reconcileYearRuns(queue))).finally(() => (reconciling = false));
 	}, intervalMs);
 	timer.unref();
 

@@ -14,4 +14,4 @@ export { MailOutbox, MailMark, MAIL_STATUSES, type MailStatus, type MailKind } f
 export { NotificationSetting, NotificationItem, STRATEGY_MODES, type StrategyMode } from './notification';
 export { Upload } from './upload';
 export { ModelCheck, ModelCheckEvent } from './model-check';
-export { Climate, ChargingPatternRow, YearEvaluation } from './year';
+export { Climate, ChargingPatternRow, YearEvaluation, YearExactRun, YearExactChunk, ACTIVE_EXACT_STATUSES, type YearExactStatus } from './year';

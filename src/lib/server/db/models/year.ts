@@ -95,3 +95,70 @@ YearEvaluation.init(
 	},
 	{ sequelize, tableName: 'year_evaluations', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
 );
+
+export type YearExactStatus = 'queued' | 'running' | 'done' | 'failed' | 'cancelled';
+export const ACTIVE_EXACT_STATUSES: YearExactStatus[] = ['queued', 'running'];
+
+/** An exact-mode run of an evaluation: every sampled charge simulated in background chunks. */
+export class YearExactRun extends Model {
+	declare id: CreationOptional<number>;
+	declare evaluation_id: number;
+	declare status: YearExactStatus;
+	declare queue_token: string;
+	declare plan: string;
+	declare chunk_size: number;
+	declare chunk_count: number;
+	declare chunks_done: CreationOptional<number>;
+	declare simulation_count: number;
+	declare simulations_done: CreationOptional<number>;
+	declare result: string | null;
+	declare failure_reason: string | null;
+	declare created_by: string | null;
+	declare created_at: CreationOptional<Date>;
+	declare started_at: Date | null;
+	declare finished_at: Date | null;
+}
+YearExactRun.init(
+	{
+		id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+		evaluation_id: { type: DataTypes.INTEGER, allowNull: false },
+		status: { type: DataTypes.STRING, allowNull: false },
+		queue_token: { type: DataTypes.STRING, allowNull: false },
+		plan: { type: DataTypes.TEXT, allowNull: false },
+		chunk_size: { type: DataTypes.INTEGER, allowNull: false },
+		chunk_count: { type: DataTypes.INTEGER, allowNull: false },
+		chunks_done: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+		simulation_count: { type: DataTypes.INTEGER, allowNull: false },
+		simulations_done: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+		result: { type: DataTypes.TEXT, allowNull: true },
+		failure_reason: { type: DataTypes.TEXT, allowNull: true },
+		created_by: { type: DataTypes.STRING, allowNull: true },
+		started_at: { type: DataTypes.DATE, allowNull: true },
+		finished_at: { type: DataTypes.DATE, allowNull: true }
+	},
+	{ sequelize, tableName: 'year_exact_runs', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
+);
+
+/** One stored chunk of an exact run (the receipt that makes storing it happen once). */
+export class YearExactChunk extends Model {
+	declare id: CreationOptional<number>;
+	declare run_id: number;
+	declare chunk_index: number;
+	declare figures: string;
+	declare worker: string;
+	declare attempt: number;
+	declare elapsed_ms: number;
+	declare created_at: CreationOptional<Date>;
+}
+YearExactChunk.init(
+	{
+		id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+		run_id: { type: DataTypes.INTEGER, allowNull: false },
+		chunk_index: { type: DataTypes.INTEGER, allowNull: false },
+		figures: { type: DataTypes.TEXT, allowNull: false },
+		worker: { type: DataTypes.STRING, allowNull: false },
+		attempt: { type: DataTypes.INTEGER, allowNull: false },
+		elapsed_ms: { type: DataTypes.INTEGER, allowNull: false }
+	},
+	{ sequelize, tableName: 'year_exact_chunks', underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: false }
+);

@@ -3,8 +3,9 @@ import type { RequestHandler } from './$types';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { getEvaluation, MAX_FLEET_SIZE } from '$lib/server/year';
 import { yearCsv } from '$lib/year/export';
+import { latestExactRun } from '$lib/server/year-exact';
 
-/** The evaluation's figures as CSV; `?fleet=N` overrides the stored fleet size. */
+/** The evaluation's figures as CSV (with the exact run's figures once it is done); `?fleet=N` overrides the stored fleet size. */
 export const GET: RequestHandler = async ({ locals, params, url }) => {
 	const { program } = await requireProgramRole(locals, params.programId, 'read');
 	const id = parseId(params.evaluationId, 'evaluation');
@@ -16,7 +17,8 @@ export const GET: RequestHandler = async ({ locals, params, url }) => {
 		if (!/^[1-9][0-9]{0,6}$/.test(raw) || Number(raw) > MAX_FLEET_SIZE) error(400, `fleet must be a whole number of vehicles from 1 to ${MAX_FLEET_SIZE}.`);
 		fleet = Number(raw);
 	}
-	const csv = yearCsv(ev.result, { ...ev.pattern.data, currency: ev.pattern.data.currency }, fleet);
+	const exact = await latestExactRun(id);
+	const csv = yearCsv(ev.result, { ...ev.pattern.data, currency: ev.pattern.data.currency }, fleet, exact?.status === 'done' ? exact.result : null);
 	return new Response(csv, {
 		headers: {
 			'content-type': 'text/csv; charset=utf-8',

@@ -1,5 +1,6 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import type { Actions, PageServerLoad } from './$types';
+import { readForm } from '$lib/server/read-form';
 import { parseId, requireProgramRole } from '$lib/server/auth/guard';
 import { roleCan } from '$lib/server/auth/roles';
 import { getEvaluation, YearError } from '$lib/server/year';
@@ -30,7 +31,7 @@ export const actions: Actions = {
 	exact: async ({ locals, params, request }) => {
 		const { user, program } = await requireProgramRole(locals, params.programId, 'edit');
 		const id = await ownEvaluation(program.id, params.evaluationId);
-		const form = await request.formData();
+		const form = await readForm(request);
 		if (!wantsExact(form)) return fail(400, { action: 'exact', field: 'mode', message: 'Say which run to start: the form sends mode “exact”.', values: {} });
 		try {
 			await startExactRun(program.id, id, user.id);
@@ -44,7 +45,7 @@ export const actions: Actions = {
 	cancelExact: async ({ locals, params, request }) => {
 		const { program } = await requireProgramRole(locals, params.programId, 'edit');
 		const id = await ownEvaluation(program.id, params.evaluationId);
-		const form = await request.formData();
+		const form = await readForm(request);
 		if (!wantsExact(form)) return fail(400, { action: 'cancelExact', field: 'mode', message: 'Say which run to cancel: the form sends mode “exact”.', values: {} });
 		try {
 			if (!(await cancelExactRun(program.id, id)))

@@ -16,8 +16,12 @@ export default defineConfig({
 		// hung test, they are not speed targets (those live in `npm run bench` and `npm run load`).
 		testTimeout: 180_000,
 		hookTimeout: 300_000,
-		// Integration suites start their own servers and processes; keep them apart.
+		// Integration suites start their own servers and processes, each in its own data folder with
+		// its own Redis. Two files at a time even on 2 cores: most integration time is spent waiting on
+		// those servers, so the second file fills the gaps (vitest would otherwise use cores − 1 = 1).
 		fileParallelism: true,
-		pool: 'forks'
+		pool: 'forks',
+		maxWorkers: 2,
+		minWorkers: 1
 	}
 });
